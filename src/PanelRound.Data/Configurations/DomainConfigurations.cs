@@ -1,0 +1,134 @@
+using Microsoft.EntityFrameworkCore;
+using Microsoft.EntityFrameworkCore.Metadata.Builders;
+using PanelRound.Data.Entities;
+
+namespace PanelRound.Data.Configurations;
+
+internal sealed class IndicatorConfiguration : IEntityTypeConfiguration<Indicator>
+{
+    public void Configure(EntityTypeBuilder<Indicator> b)
+    {
+        b.Property(x => x.Key).HasMaxLength(100).IsRequired();
+        b.HasIndex(x => x.Key).IsUnique();
+        b.Property(x => x.Name).HasMaxLength(300).IsRequired();
+        b.Property(x => x.UnitLabel).HasMaxLength(50).IsRequired();
+        b.Property(x => x.Description).HasMaxLength(4000);
+        b.HasMany(x => x.Observations).WithOne(x => x.Indicator).HasForeignKey(x => x.IndicatorId).OnDelete(DeleteBehavior.Restrict);
+    }
+}
+
+internal sealed class ObservationConfiguration : IEntityTypeConfiguration<Observation>
+{
+    public void Configure(EntityTypeBuilder<Observation> b)
+    {
+        b.Property(x => x.Period).HasMaxLength(10).IsRequired();
+        b.Property(x => x.Source).HasMaxLength(500);
+        b.Property(x => x.RecordedBy).HasMaxLength(256);
+        b.HasIndex(x => new { x.IndicatorId, x.PeriodSortKey, x.SupersededAt });
+    }
+}
+
+internal sealed class PanelConfiguration : IEntityTypeConfiguration<Panel>
+{
+    public void Configure(EntityTypeBuilder<Panel> b)
+    {
+        b.Property(x => x.Title).HasMaxLength(300).IsRequired();
+        b.Property(x => x.Brief).HasMaxLength(20000);
+        b.Property(x => x.TargetPeriods).HasMaxLength(500).IsRequired();
+        b.Property(x => x.CreatedBy).HasMaxLength(256);
+        b.Property(x => x.ExternalKey).HasMaxLength(200);
+        b.HasIndex(x => x.ExternalKey).IsUnique();
+        b.Property(x => x.Version).IsConcurrencyToken();
+        b.ComplexProperty(x => x.Settings);
+        b.HasMany(x => x.Questions).WithOne(x => x.Panel).HasForeignKey(x => x.PanelId).OnDelete(DeleteBehavior.Cascade);
+        b.HasMany(x => x.Rounds).WithOne(x => x.Panel).HasForeignKey(x => x.PanelId).OnDelete(DeleteBehavior.Cascade);
+        b.HasMany(x => x.Memberships).WithOne(x => x.Panel).HasForeignKey(x => x.PanelId).OnDelete(DeleteBehavior.Cascade);
+    }
+}
+
+internal sealed class QuestionConfiguration : IEntityTypeConfiguration<Question>
+{
+    public void Configure(EntityTypeBuilder<Question> b)
+    {
+        b.Property(x => x.Label).HasMaxLength(300).IsRequired();
+        b.Property(x => x.HelpText).HasMaxLength(4000);
+        b.Property(x => x.TargetPeriods).HasMaxLength(500).IsRequired();
+        b.HasOne(x => x.Indicator).WithMany().HasForeignKey(x => x.IndicatorId).OnDelete(DeleteBehavior.Restrict);
+    }
+}
+
+internal sealed class ExpertConfiguration : IEntityTypeConfiguration<Expert>
+{
+    public void Configure(EntityTypeBuilder<Expert> b)
+    {
+        b.Property(x => x.Name).HasMaxLength(200).IsRequired();
+        b.Property(x => x.Email).HasMaxLength(256).IsRequired();
+        b.HasIndex(x => x.Email).IsUnique();
+        b.Property(x => x.Affiliation).HasMaxLength(200);
+        b.Property(x => x.Expertise).HasMaxLength(500);
+        b.Property(x => x.DeclaredInterests).HasMaxLength(2000);
+        b.Property(x => x.ExternalKey).HasMaxLength(200);
+        b.HasIndex(x => x.ExternalKey).IsUnique();
+        b.HasMany(x => x.Memberships).WithOne(x => x.Expert).HasForeignKey(x => x.ExpertId).OnDelete(DeleteBehavior.Restrict);
+    }
+}
+
+internal sealed class MembershipConfiguration : IEntityTypeConfiguration<PanelMembership>
+{
+    public void Configure(EntityTypeBuilder<PanelMembership> b)
+    {
+        b.ToTable("Memberships");
+        b.Property(x => x.PanelCode).HasMaxLength(20).IsRequired();
+        b.HasIndex(x => x.PanelCode).IsUnique();
+        b.Property(x => x.TokenHash).HasMaxLength(64).IsRequired();
+        b.HasIndex(x => x.TokenHash).IsUnique();
+        b.HasIndex(x => new { x.PanelId, x.ExpertId }).IsUnique();
+    }
+}
+
+internal sealed class RoundConfiguration : IEntityTypeConfiguration<Round>
+{
+    public void Configure(EntityTypeBuilder<Round> b)
+    {
+        b.HasIndex(x => new { x.PanelId, x.Number }).IsUnique();
+        b.Property(x => x.ClosedBy).HasMaxLength(256);
+        b.HasMany(x => x.Feedback).WithOne(x => x.Round).HasForeignKey(x => x.RoundId).OnDelete(DeleteBehavior.Cascade);
+    }
+}
+
+internal sealed class RoundFeedbackConfiguration : IEntityTypeConfiguration<RoundFeedback>
+{
+    public void Configure(EntityTypeBuilder<RoundFeedback> b)
+    {
+        b.Property(x => x.Period).HasMaxLength(10).IsRequired();
+        b.HasIndex(x => new { x.RoundId, x.QuestionId, x.Period }).IsUnique();
+        b.HasOne<Question>().WithMany().HasForeignKey(x => x.QuestionId).OnDelete(DeleteBehavior.Restrict);
+    }
+}
+
+internal sealed class EstimateConfiguration : IEntityTypeConfiguration<Estimate>
+{
+    public void Configure(EntityTypeBuilder<Estimate> b)
+    {
+        b.Property(x => x.Period).HasMaxLength(10).IsRequired();
+        b.Property(x => x.Rationale).HasMaxLength(4000);
+        b.HasIndex(x => new { x.RoundId, x.QuestionId, x.Period, x.MembershipId });
+        b.HasIndex(x => new { x.MembershipId, x.RoundId });
+        b.HasOne<Round>().WithMany().HasForeignKey(x => x.RoundId).OnDelete(DeleteBehavior.Restrict);
+        b.HasOne(x => x.Membership).WithMany().HasForeignKey(x => x.MembershipId).OnDelete(DeleteBehavior.Restrict);
+        b.HasOne<Question>().WithMany().HasForeignKey(x => x.QuestionId).OnDelete(DeleteBehavior.Restrict);
+    }
+}
+
+internal sealed class ConsensusConfiguration : IEntityTypeConfiguration<ConsensusEntry>
+{
+    public void Configure(EntityTypeBuilder<ConsensusEntry> b)
+    {
+        b.ToTable("Consensus");
+        b.Property(x => x.Period).HasMaxLength(10).IsRequired();
+        b.Property(x => x.Method).HasMaxLength(100).IsRequired();
+        b.HasIndex(x => new { x.PanelId, x.QuestionId, x.Period }).IsUnique();
+        b.HasOne<Panel>().WithMany().HasForeignKey(x => x.PanelId).OnDelete(DeleteBehavior.Cascade);
+        b.HasOne<Question>().WithMany().HasForeignKey(x => x.QuestionId).OnDelete(DeleteBehavior.Restrict);
+    }
+}

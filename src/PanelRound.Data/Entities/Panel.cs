@@ -1,0 +1,102 @@
+namespace PanelRound.Data.Entities;
+
+/// <summary>One forecasting exercise.</summary>
+public class Panel
+{
+    public int Id { get; set; }
+
+    public string Title { get; set; } = "";
+
+    /// <summary>The brief, in Markdown; rendered through a sanitiser.</summary>
+    public string Brief { get; set; } = "";
+
+    /// <summary>The panel's start: the reference series is the observations before it.</summary>
+    public DateOnly StartsOn { get; set; }
+
+    /// <summary>Target periods, comma-separated text forms, e.g. <c>2027,2028,2029,2030,2031</c>.</summary>
+    public string TargetPeriods { get; set; } = "";
+
+    public PanelState State { get; set; }
+
+    public PanelSettings Settings { get; set; } = new();
+
+    public DateTime CreatedAt { get; set; }
+
+    public string? CreatedBy { get; set; }
+
+    public DateTime? ConcludedAt { get; set; }
+
+    /// <summary>An external key when the panel was imported from a firm's records.</summary>
+    public string? ExternalKey { get; set; }
+
+    /// <summary>Optimistic concurrency token, changed on every state change.</summary>
+    public Guid Version { get; set; }
+
+    public List<Question> Questions { get; set; } = [];
+
+    public List<Round> Rounds { get; set; } = [];
+
+    public List<PanelMembership> Memberships { get; set; } = [];
+}
+
+/// <summary>A panel's statistical and procedural settings (stored with the panel).</summary>
+public class PanelSettings
+{
+    public OutlierRuleSetting OutlierRule { get; set; } = OutlierRuleSetting.TukeyFences;
+
+    /// <summary>Share trimmed from each tail for the trimmed mean and the symmetric-trim rule.</summary>
+    public double TrimFraction { get; set; } = 0.10;
+
+    /// <summary>Consensus when the relative IQR is at or below this (0.10 = 10%).</summary>
+    public double ConsensusThreshold { get; set; } = 0.10;
+
+    /// <summary>An answer "moved" when it changed by more than this share (0.15 = 15%).</summary>
+    public double StabilityThreshold { get; set; } = 0.15;
+
+    public int RoundCap { get; set; } = 3;
+
+    /// <summary>No distribution is shown for fewer answers than this; never below 3.</summary>
+    public int MinimumGroupSize { get; set; } = 3;
+
+    public bool ShowRationales { get; set; } = true;
+
+    /// <summary>An answer outside the previous round's retained range must carry a rationale.</summary>
+    public bool OutliersMustJustify { get; set; } = true;
+
+    public ConsensusWeighting Weighting { get; set; } = ConsensusWeighting.Equal;
+}
+
+/// <summary>A panel's ask about one indicator.</summary>
+public class Question
+{
+    public int Id { get; set; }
+
+    public int PanelId { get; set; }
+
+    public Panel? Panel { get; set; }
+
+    public int IndicatorId { get; set; }
+
+    public Indicator? Indicator { get; set; }
+
+    public int Order { get; set; }
+
+    public string Label { get; set; } = "";
+
+    public string? HelpText { get; set; }
+
+    public ResponseFormat Format { get; set; }
+
+    /// <summary>Answers outside the hard bounds are refused.</summary>
+    public double? HardMin { get; set; }
+
+    public double? HardMax { get; set; }
+
+    /// <summary>Answers outside the plausible range ask "are you sure?".</summary>
+    public double? PlausibleMin { get; set; }
+
+    public double? PlausibleMax { get; set; }
+
+    /// <summary>Target periods, comma-separated; by default the panel's.</summary>
+    public string TargetPeriods { get; set; } = "";
+}

@@ -1,0 +1,112 @@
+namespace PanelRound.Data.Entities;
+
+/// <summary>A window in which experts answer.</summary>
+public class Round
+{
+    public int Id { get; set; }
+
+    public int PanelId { get; set; }
+
+    public Panel? Panel { get; set; }
+
+    public int Number { get; set; }
+
+    public RoundState State { get; set; }
+
+    public DateTime OpensAt { get; set; }
+
+    /// <summary>The deadline; the round closes itself then.</summary>
+    public DateTime ClosesAt { get; set; }
+
+    public DateTime? ClosedAt { get; set; }
+
+    public string? ClosedBy { get; set; }
+
+    public List<RoundFeedback> Feedback { get; set; } = [];
+}
+
+/// <summary>The frozen group statistics of one question-period in a closed round.</summary>
+public class RoundFeedback
+{
+    public long Id { get; set; }
+
+    public int RoundId { get; set; }
+
+    public Round? Round { get; set; }
+
+    public int QuestionId { get; set; }
+
+    public string Period { get; set; } = "";
+
+    public int N { get; set; }
+
+    /// <summary>True when fewer answers than the minimum group size arrived: nothing is shown.</summary>
+    public bool Withheld { get; set; }
+
+    /// <summary>The full statistics as JSON (the shape of the web layer's feedback view).</summary>
+    public string StatisticsJson { get; set; } = "{}";
+
+    /// <summary>Unattributed rationales, shuffled, as a JSON array of strings.</summary>
+    public string RationalesJson { get; set; } = "[]";
+}
+
+/// <summary>
+/// One expert's answer to one question-period in one round. Append-only: a revision is a new
+/// row, and the latest submitted row in the round counts.
+/// </summary>
+public class Estimate
+{
+    public long Id { get; set; }
+
+    public int RoundId { get; set; }
+
+    public int MembershipId { get; set; }
+
+    public PanelMembership? Membership { get; set; }
+
+    public int QuestionId { get; set; }
+
+    public string Period { get; set; } = "";
+
+    public double? Value { get; set; }
+
+    public double? P10 { get; set; }
+
+    public double? P50 { get; set; }
+
+    public double? P90 { get; set; }
+
+    /// <summary>1 (low) to 5 (high).</summary>
+    public int? Confidence { get; set; }
+
+    public string? Rationale { get; set; }
+
+    /// <summary>A saved draft does not count until submitted.</summary>
+    public bool IsDraft { get; set; }
+
+    public DateTime CreatedAt { get; set; }
+}
+
+/// <summary>The panel's published forecast for one question-period.</summary>
+public class ConsensusEntry
+{
+    public long Id { get; set; }
+
+    public int PanelId { get; set; }
+
+    public int QuestionId { get; set; }
+
+    public string Period { get; set; } = "";
+
+    public double Value { get; set; }
+
+    public double Low { get; set; }
+
+    public double High { get; set; }
+
+    public int N { get; set; }
+
+    public string Method { get; set; } = "";
+
+    public DateTime PublishedAt { get; set; }
+}

@@ -1,0 +1,133 @@
+using System.Globalization;
+using System.Text.Json;
+using System.Text.Json.Serialization;
+using PanelRound.Web.Infrastructure;
+
+namespace PanelRound.Web.Demo;
+
+/// <summary>The <c>Demo</c> configuration section.</summary>
+public sealed class DemoOptions
+{
+    public const string Section = "Demo";
+
+    /// <summary><c>Demo:Enabled</c>: load the demo scenario into an empty database and print its sign-ins.</summary>
+    public bool Enabled { get; set; }
+
+    /// <summary><c>Demo:Folder</c>: where the demo files are; by default the repository's demo-data folder.</summary>
+    public string? Folder { get; set; }
+}
+
+public sealed record DemoIndicator(string Key, string Name, string Unit, int Decimals, string Description);
+
+public sealed record DemoObservation(string Indicator, string Period, double Value, string Source);
+
+public sealed record DemoExpert(string Key, string Name, string Email, string Affiliation, string Expertise, string DeclaredInterests, string Profile);
+
+public sealed record DemoEstimate(string Panel, int Round, string Expert, string Indicator, string Period,
+    double? Value, double? P10, double? P50, double? P90, int Confidence, string Rationale, DateTime SubmittedAt);
+
+public sealed record DemoStaff(string Email, string Name, string Role, string Password);
+
+public sealed record DemoQuestion(string Indicator, string Label, string Format, double HardMin, double HardMax,
+    double PlausibleMin, double PlausibleMax, string Help);
+
+public sealed record DemoMember(string Expert, string PanelCode, string Token);
+
+public sealed record DemoRound(int Number, DateTime OpensAt, DateTime ClosesAt, bool Closed);
+
+public sealed record DemoPanel(string Key, string Title, string Brief, DateOnly StartsOn, string TargetPeriods,
+    bool Concluded, IReadOnlyList<DemoQuestion> Questions, IReadOnlyList<DemoMember> Members, IReadOnlyList<DemoRound> Rounds);
+
+/// <summary>
+/// The demo scenario as files: CSV for the tables a firm would recognise (indicators,
+/// observations, experts, estimates), JSON for the panels' structure and the demo staff.
+/// </summary>
+public sealed record DemoScenario(
+    DateOnly AnchorDate,
+    IReadOnlyList<DemoStaff> Staff,
+    IReadOnlyList<DemoIndicator> Indicators,
+    IReadOnlyList<DemoObservation> Observations,
+    IReadOnlyList<DemoExpert> Experts,
+    IReadOnlyList<DemoPanel> Panels,
+    IReadOnlyList<DemoEstimate> Estimates)
+{
+    private static readonly JsonSerializerOptions Json = new(JsonSerializerDefaults.Web)
+    {
+        WriteIndented = true,
+        DefaultIgnoreCondition = JsonIgnoreCondition.WhenWritingNull,
+    };
+
+    private sealed record Structure(DateOnly AnchorDate, IReadOnlyList<DemoStaff> Staff, IReadOnlyList<DemoPanel> Panels);
+
+    public void Write(string folder)
+    {
+        Directory.CreateDirectory(folder);
+        File.WriteAllText(Path.Combine(folder, "panels.json"), JsonSerializer.Serialize(new Structure(AnchorDate, Staff, Panels), Json) + "\n");
+        CsvFiles.WriteFile(Path.Combine(folder, "indicators.csv"), ["key", "name", "unit", "decimals", "description"],
+            Indicators.Select(i => (IReadOnlyList<string?>)[i.Key, i.Name, i.Unit, F(i.Decimals), i.Description]));
+        CsvFiles.WriteFile(Path.Combine(folder, "observations.csv"), ["indicator", "period", "value", "source"],
+            Observations.Select(o => (IReadOnlyList<string?>)[o.Indicator, o.Period, F(o.Value), o.Source]));
+        CsvFiles.WriteFile(Path.Combine(folder, "experts.csv"), ["key", "name", "email", "affiliation", "expertise", "declared_interests", "profile"],
+            Experts.Select(e => (IReadOnlyList<string?>)[e.Key, e.Name, e.Email, e.Affiliation, e.Expertise, e.DeclaredInterests, e.Profile]));
+        CsvFiles.WriteFile(Path.Combine(folder, "estimates.csv"),
+            ["panel", "round", "expert", "indicator", "target_period", "value", "p10", "p50", "p90", "confidence", "rationale", "submitted_at"],
+            Estimates.Select(e => (IReadOnlyList<string?>)[e.Panel, F(e.Round), e.Expert, e.Indicator, e.Period,
+                F(e.Value), F(e.P10), F(e.P50), F(e.P90), F(e.Confidence), e.Rationale, e.SubmittedAt.ToString("yyyy-MM-ddTHH:mm:ssZ", CultureInfo.InvariantCulture)]));
+    }
+
+    public static DemoScenario Read(string folder)
+    {
+        var structure = JsonSerializer.Deserialize<Structure>(File.ReadAllText(Path.Combine(folder, "panels.json")), Json)
+            ?? throw new InvalidDataException("panels.json is empty.");
+        var indicators = CsvFiles.ReadFile(Path.Combine(folder, "indicators.csv")).Rows
+            .Select(r => new DemoIndicator(r["key"]!, r["name"]!, r["unit"]!, int.Parse(r["decimals"]!, CultureInfo.InvariantCulture), r["description"] ?? "")).ToList();
+        var observations = CsvFiles.ReadFile(Path.Combine(folder, "observations.csv")).Rows
+            .Select(r => new DemoObservation(r["indicator"]!, r["period"]!, D(r["value"])!.Value, r["source"] ?? "")).ToList();
+        var experts = CsvFiles.ReadFile(Path.Combine(folder, "experts.csv")).Rows
+            .Select(r => new DemoExpert(r["key"]!, r["name"]!, r["email"]!, r["affiliation"] ?? "", r["expertise"] ?? "", r["declared_interests"] ?? "", r["profile"] ?? "")).ToList();
+        var estimates = CsvFiles.ReadFile(Path.Combine(folder, "estimates.csv")).Rows
+            .Select(r => new DemoEstimate(r["panel"]!, int.Parse(r["round"]!, CultureInfo.InvariantCulture), r["expert"]!, r["indicator"]!, r["target_period"]!,
+                D(r["value"]), D(r["p10"]), D(r["p50"]), D(r["p90"]), int.Parse(r["confidence"]!, CultureInfo.InvariantCulture), r["rationale"] ?? "",
+                DateTime.Parse(r["submitted_at"]!, CultureInfo.InvariantCulture, DateTimeStyles.AdjustToUniversal | DateTimeStyles.AssumeUniversal))).ToList();
+        return new DemoScenario(structure.AnchorDate, structure.Staff, indicators, observations, experts, structure.Panels, estimates);
+    }
+
+    private static string F(double v) => v.ToString("R", CultureInfo.InvariantCulture);
+
+    private static string? F(double? v) => v?.ToString("R", CultureInfo.InvariantCulture);
+
+    private static string F(int v) => v.ToString(CultureInfo.InvariantCulture);
+
+    private static double? D(string? s) => s is null ? null : double.Parse(s, NumberStyles.Float, CultureInfo.InvariantCulture);
+}
+
+public static class DemoFiles
+{
+    /// <summary>
+    /// Finds the demo-data folder: the one beside PanelRound.sln above the content root (a
+    /// clone), or the nearest folder above it that holds demo-data/panels.json (a published app).
+    /// </summary>
+    public static string? FindFolder(string start)
+    {
+        for (var dir = new DirectoryInfo(start); dir is not null; dir = dir.Parent)
+        {
+            var candidate = Path.Combine(dir.FullName, "demo-data");
+            if (File.Exists(Path.Combine(dir.FullName, "PanelRound.sln")) || File.Exists(Path.Combine(candidate, "panels.json")))
+            {
+                return candidate;
+            }
+        }
+        return null;
+    }
+
+    /// <summary>A path given on the command line: relative paths are taken from the repository root when there is one.</summary>
+    public static string ResolveOut(string path, string contentRoot)
+    {
+        if (Path.IsPathRooted(path))
+        {
+            return path;
+        }
+        var root = FindFolder(contentRoot) is { } demo ? Path.GetDirectoryName(demo)! : Environment.CurrentDirectory;
+        return Path.GetFullPath(Path.Combine(root, path));
+    }
+}

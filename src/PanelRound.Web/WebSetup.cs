@@ -1,0 +1,71 @@
+using Microsoft.EntityFrameworkCore;
+using PanelRound.Data;
+using PanelRound.Web.Demo;
+using PanelRound.Web.Infrastructure;
+
+namespace PanelRound.Web;
+
+/// <summary>The web host's services and pipeline, so that Program.cs reads as a table of contents.</summary>
+public static class WebSetup
+{
+    public static IHostApplicationBuilder AddPanelRoundWeb(this IHostApplicationBuilder builder)
+    {
+        var services = builder.Services;
+        services.AddSingleton(TimeProvider.System);
+        services.AddProblemDetails();
+        services.AddOpenApi();
+        services.AddRazorPages(o =>
+        {
+            o.Conventions.AuthorizeFolder("/Staff", AuthSetup.StaffPolicy);
+            o.Conventions.AuthorizeFolder("/Admin", AuthSetup.AdministratorPolicy);
+        });
+        services.AddOptions<DemoOptions>().BindConfiguration(DemoOptions.Section).ValidateOnStart();
+        return builder;
+    }
+
+    /// <summary>Migrates where configured, then loads the demo scenario into an empty database when the demo is on.</summary>
+    public static async Task PrepareDatabaseAsync(this WebApplication app)
+    {
+        await DatabaseSetup.PrepareAsync(app.Services);
+        var demo = app.Services.GetRequiredService<Microsoft.Extensions.Options.IOptions<DemoOptions>>().Value;
+        if (demo.Enabled)
+        {
+            using var scope = app.Services.CreateScope();
+            var loader = ActivatorUtilities.CreateInstance<DemoLoader>(scope.ServiceProvider);
+            await loader.LoadIfEmptyAsync(app.Environment.ContentRootPath, demo);
+        }
+        var urls = app.Urls.Count > 0 ? string.Join(", ", app.Urls) : app.Configuration["urls"] ?? "http://localhost:5000";
+        app.Lifetime.ApplicationStarted.Register(() =>
+        {
+            var provider = app.Services.GetRequiredService<DatabaseOptions>().Provider;
+            Console.WriteLine($"PanelRound is serving on {string.Join(", ", app.Urls)} (database: {provider}).");
+            if (demo.Enabled)
+            {
+                DemoLoader.PrintSignIns(app.Urls.FirstOrDefault() ?? urls, app.Services);
+            }
+        });
+    }
+
+    public static WebApplication UsePanelRoundPipeline(this WebApplication app)
+    {
+        if (!app.Environment.IsDevelopment())
+        {
+            app.UseExceptionHandler("/Error");
+        }
+        app.UseStatusCodePages();
+        app.UseStaticFiles();
+        app.UseRouting();
+        app.UseAuthentication();
+        app.UseAuthorization();
+        app.MapOpenApi("/openapi/{documentName}.json");
+        return app;
+    }
+
+    public static IEndpointRouteBuilder MapPanelRoundApis(this IEndpointRouteBuilder app)
+    {
+        return app;
+    }
+
+    internal static async Task<bool> IsEmptyAsync(PanelRoundDbContext db) =>
+        !await db.Indicators.AnyAsync() && !await db.Users.AnyAsync();
+}
