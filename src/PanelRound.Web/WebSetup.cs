@@ -1,5 +1,6 @@
 using Microsoft.EntityFrameworkCore;
 using PanelRound.Data;
+using PanelRound.Web.Apis;
 using PanelRound.Web.Demo;
 using PanelRound.Web.Infrastructure;
 
@@ -63,6 +64,7 @@ public static class WebSetup
 
     public static IEndpointRouteBuilder MapPanelRoundApis(this IEndpointRouteBuilder app)
     {
+        app.MapAccountApi();
         return app;
     }
 

@@ -101,7 +101,9 @@ public static class Quantiles
     /// rescaled so that the first value sits at 0 and the last at 1:
     /// u(k) = (S(k) − w(k)/2 − w(1)/2) / (1 − w(1)/2 − w(m)/2).
     /// The quantile is the linear interpolation of the points (u(k), x(k)) at p. A single
-    /// positive-weight value is returned for every p.</para>
+    /// positive-weight value is returned for every p. Tied values first share their total weight
+    /// equally (a tie group of t values with total weight W counts as t values of weight W/t), so
+    /// the result does not depend on the order of tied answers.</para>
     /// <para>Under equal weights w = 1/m this gives u(k) = (k − 1)/(m − 1), the plotting position of
     /// Hyndman &amp; Fan (1996) type 7, so the two quantiles coincide (a property test checks it).
     /// The definition is symmetric: reversing the sign of the data maps the p quantile to minus
@@ -314,6 +316,31 @@ public static class Quantiles
         }
 
         Array.Sort(x, w);
+
+        // Tied values share their total weight equally, so that the result does not depend on the
+        // order in which tied values arrive (the sort is not stable) and stays symmetric.
+        for (var start = 0; start < m;)
+        {
+            var end = start + 1;
+            var groupWeight = w[start];
+            while (end < m && x[end] == x[start])
+            {
+                groupWeight += w[end];
+                end++;
+            }
+
+            if (end - start > 1)
+            {
+                var share = groupWeight / (end - start);
+                for (var i = start; i < end; i++)
+                {
+                    w[i] = share;
+                }
+            }
+
+            start = end;
+        }
+
         return (x, w);
     }
 

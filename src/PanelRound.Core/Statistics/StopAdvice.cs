@@ -52,7 +52,7 @@ public static class StopAdvice
             return new StopSuggestion(
                 StopReason.ConsensusReached,
                 true,
-                string.Format(c, "Consensus reached: relative IQR {0:P1} is at or below the {1:P1} threshold with {2} answers.", convergence.RelativeIqr, convergence.Threshold, convergence.N));
+                string.Format(c, "Consensus reached: relative IQR {0:0.0}% is at or below the {1:0.0}% threshold with {2} answers.", 100 * convergence.RelativeIqr, 100 * convergence.Threshold, convergence.N));
         }
 
         if (stability is { IsStable: true })
@@ -60,7 +60,7 @@ public static class StopAdvice
             return new StopSuggestion(
                 StopReason.Stable,
                 true,
-                string.Format(c, "Stable: {0} of {1} experts moved by more than {2:P0}, and the signed-rank test finds no shift (p = {3:0.###}).", stability.MovedCount, stability.PairedCount, stability.MoveThreshold, stability.Wilcoxon?.PValue));
+                string.Format(c, "Stable: {0} of {1} experts moved by more than {2:0.#}%, and the signed-rank test finds no shift (p = {3:0.###}).", stability.MovedCount, stability.PairedCount, 100 * stability.MoveThreshold, stability.Wilcoxon?.PValue));
         }
 
         if (roundNumber >= roundCap)
@@ -72,7 +72,7 @@ public static class StopAdvice
         }
 
         var dispersion = convergence.RelativeIqr is { } r
-            ? string.Format(c, "relative IQR {0:P1} is above the {1:P1} threshold", r, convergence.Threshold)
+            ? string.Format(c, "relative IQR {0:0.0}% is above the {1:0.0}% threshold", 100 * r, 100 * convergence.Threshold)
             : "relative IQR is undefined (median 0)";
         if (convergence.RelativeIqr is not null && convergence.RelativeIqr <= convergence.Threshold)
         {

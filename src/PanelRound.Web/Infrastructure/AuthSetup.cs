@@ -28,7 +28,11 @@ public static class AuthSetup
         services.AddIdentity<StaffUser, IdentityRole>(o =>
             {
                 o.Password.RequiredLength = 12;
+                // Length over composition rules (NIST SP 800-63B, section 5.1.1).
                 o.Password.RequireNonAlphanumeric = false;
+                o.Password.RequireUppercase = false;
+                o.Password.RequireLowercase = false;
+                o.Password.RequireDigit = false;
                 o.User.RequireUniqueEmail = true;
                 o.Lockout.MaxFailedAccessAttempts = 8;
             })
