@@ -1,4 +1,3 @@
-using MathNet.Numerics.Statistics;
 using PanelRound.Core.Statistics;
 using MathNetStatistics = MathNet.Numerics.Statistics.Statistics;
 
