@@ -1,6 +1,7 @@
 using Microsoft.EntityFrameworkCore;
 using PanelRound.Data;
 using PanelRound.Web.Apis;
+using PanelRound.Web.Application;
 using PanelRound.Web.Demo;
 using PanelRound.Web.Infrastructure;
 
@@ -21,6 +22,17 @@ public static class WebSetup
             o.Conventions.AuthorizeFolder("/Admin", AuthSetup.AdministratorPolicy);
         });
         services.AddOptions<DemoOptions>().BindConfiguration(DemoOptions.Section).ValidateOnStart();
+        services.AddOptions<MailOptions>().BindConfiguration(MailOptions.Section).ValidateOnStart();
+        services.AddOptions<RoundOptions>().BindConfiguration(RoundOptions.Section).ValidateOnStart();
+        services.AddScoped<Catalog>();
+        services.AddScoped<PanelWorkflow>();
+        services.AddScoped<ConsensusPublisher>();
+        services.AddScoped<ExpertAnswers>();
+        services.AddScoped<PanelResults>();
+        services.AddScoped<IMemberWeights, TrackRecordWeightsService>();
+        services.AddSingleton<IMailer, Mailer>();
+        services.AddSingleton<RoundDeadlineService>();
+        services.AddHostedService(sp => sp.GetRequiredService<RoundDeadlineService>());
         return builder;
     }
 
@@ -65,6 +77,10 @@ public static class WebSetup
     public static IEndpointRouteBuilder MapPanelRoundApis(this IEndpointRouteBuilder app)
     {
         app.MapAccountApi();
+        app.MapCatalogApi();
+        app.MapPanelsApi();
+        app.MapExpertApi();
+        app.MapAuditApi();
         return app;
     }
 

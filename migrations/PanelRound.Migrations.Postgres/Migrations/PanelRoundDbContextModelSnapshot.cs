@@ -754,6 +754,10 @@ namespace PanelRound.Migrations.Postgres.Migrations
                     b.Property<int>("State")
                         .HasColumnType("integer");
 
+                    b.Property<Guid>("Version")
+                        .IsConcurrencyToken()
+                        .HasColumnType("uuid");
+
                     b.HasKey("Id");
 
                     b.HasIndex("PanelId", "Number")

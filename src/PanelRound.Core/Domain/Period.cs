@@ -31,6 +31,9 @@ public readonly record struct Period : IComparable<Period>
     /// <summary>A number that orders periods by time; see the type's remarks.</summary>
     public int SortKey => Year * 10 + (Quarter == 0 ? 5 : Quarter);
 
+    /// <summary>The last day of the period: 31 December for a year, the quarter's last day otherwise.</summary>
+    public DateOnly EndDate => IsYear ? new DateOnly(Year, 12, 31) : new DateOnly(Year, Quarter * 3, 1).AddMonths(1).AddDays(-1);
+
     /// <summary>A whole year.</summary>
     public static Period OfYear(int year) => new(CheckYear(year), 0);
 

@@ -92,6 +92,7 @@ internal sealed class RoundConfiguration : IEntityTypeConfiguration<Round>
     {
         b.HasIndex(x => new { x.PanelId, x.Number }).IsUnique();
         b.Property(x => x.ClosedBy).HasMaxLength(256);
+        b.Property(x => x.Version).IsConcurrencyToken();
         b.HasMany(x => x.Feedback).WithOne(x => x.Round).HasForeignKey(x => x.RoundId).OnDelete(DeleteBehavior.Cascade);
     }
 }

@@ -22,6 +22,12 @@ public class Round
 
     public string? ClosedBy { get; set; }
 
+    /// <summary>
+    /// Optimistic concurrency token: every submission and the close change it, so a submission
+    /// can never be acknowledged into a round whose close has already read its answers.
+    /// </summary>
+    public Guid Version { get; set; }
+
     public List<RoundFeedback> Feedback { get; set; } = [];
 }
 

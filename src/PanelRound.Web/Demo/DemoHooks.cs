@@ -1,15 +1,45 @@
+using PanelRound.Data;
 using PanelRound.Data.Entities;
+using PanelRound.Web.Application;
 
 namespace PanelRound.Web.Demo;
 
-/// <summary>Brings a loaded demo panel to its state: closed rounds frozen, concluded panels published.</summary>
+/// <summary>
+/// Brings a loaded demo panel to its state through the app's own workflow: closed rounds are
+/// closed (their feedback frozen) and concluded panels publish their consensus, each at the
+/// historical moment, so the audit trail and the backtest see the dates the scenario says.
+/// </summary>
 internal static class DemoHooks
 {
-    public static Task CompleteAsync(IServiceProvider services, Panel panel, DemoPanel plan)
+    public static async Task CompleteAsync(IServiceProvider services, Panel panel, DemoPanel plan)
     {
-        _ = services;
-        _ = panel;
-        _ = plan;
-        return Task.CompletedTask;
+        var db = services.GetRequiredService<PanelRoundDbContext>();
+        var mailer = services.GetRequiredService<IMailer>();
+        var weights = services.GetRequiredService<IMemberWeights>();
+        foreach (var r in plan.Rounds.Where(r => r.Closed).OrderBy(r => r.Number))
+        {
+            var round = panel.Rounds.Single(x => x.Number == r.Number);
+            var at = new FixedClock(round.ClosesAt);
+            var outcome = await new PanelWorkflow(db, at, mailer, new ConsensusPublisher(db, at, weights)).CloseRoundAsync(panel.Id, r.Number, "demo");
+            if (!outcome.IsOk)
+            {
+                throw new InvalidOperationException($"Demo: closing round {r.Number} of {plan.Key} failed: {outcome.Message}");
+            }
+        }
+        if (plan.Concluded)
+        {
+            var at = new FixedClock(panel.Rounds.Max(r => r.ClosesAt).AddDays(2));
+            var outcome = await new PanelWorkflow(db, at, mailer, new ConsensusPublisher(db, at, weights)).ConcludeAsync(panel.Id, "demo");
+            if (!outcome.IsOk)
+            {
+                throw new InvalidOperationException($"Demo: concluding {plan.Key} failed: {outcome.Message}");
+            }
+        }
+        db.ChangeTracker.Clear();
+    }
+
+    private sealed class FixedClock(DateTime utc) : TimeProvider
+    {
+        public override DateTimeOffset GetUtcNow() => new(DateTime.SpecifyKind(utc, DateTimeKind.Utc));
     }
 }

@@ -78,7 +78,7 @@ public sealed class DemoLoader(PanelRoundDbContext db, UserManager<StaffUser> us
             {
                 panel.Questions.Add(new Question
                 {
-                    Indicator = indicators[q.Indicator], Order = ++order, Label = q.Label, HelpText = q.Help,
+                    IndicatorId = indicators[q.Indicator].Id, Order = ++order, Label = q.Label, HelpText = q.Help,
                     Format = Enum.Parse<ResponseFormat>(q.Format), HardMin = q.HardMin, HardMax = q.HardMax,
                     PlausibleMin = q.PlausibleMin, PlausibleMax = q.PlausibleMax, TargetPeriods = p.TargetPeriods,
                 });
@@ -88,7 +88,7 @@ public sealed class DemoLoader(PanelRoundDbContext db, UserManager<StaffUser> us
             {
                 var membership = new PanelMembership
                 {
-                    Expert = experts[m.Expert], PanelCode = m.PanelCode, TokenHash = Secrets.Hash(m.Token),
+                    ExpertId = experts[m.Expert].Id, PanelCode = m.PanelCode, TokenHash = Secrets.Hash(m.Token),
                     TokenIssuedAt = panel.CreatedAt, State = MembershipState.Active, CreatedAt = panel.CreatedAt,
                 };
                 panel.Memberships.Add(membership);
@@ -101,7 +101,7 @@ public sealed class DemoLoader(PanelRoundDbContext db, UserManager<StaffUser> us
             db.Panels.Add(panel);
             await db.SaveChangesAsync();
 
-            var questionByIndicator = panel.Questions.ToDictionary(q => q.Indicator!.Key);
+            var questionByIndicator = panel.Questions.ToDictionary(q => scenario.Indicators.Single(i => indicators[i.Key].Id == q.IndicatorId).Key);
             var roundByNumber = panel.Rounds.ToDictionary(r => r.Number);
             foreach (var e in scenario.Estimates.Where(e => e.Panel == p.Key))
             {

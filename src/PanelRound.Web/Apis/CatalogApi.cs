@@ -1,0 +1,69 @@
+using System.Security.Claims;
+using Microsoft.AspNetCore.Http.HttpResults;
+using Microsoft.AspNetCore.Mvc;
+using Microsoft.EntityFrameworkCore;
+using PanelRound.Data;
+using PanelRound.Web.Application;
+using PanelRound.Web.Infrastructure;
+
+namespace PanelRound.Web.Apis;
+
+/// <summary>Indicators with their observations, and the expert roster.</summary>
+public static class CatalogApi
+{
+    public static IEndpointRouteBuilder MapCatalogApi(this IEndpointRouteBuilder app)
+    {
+        var indicators = app.MapGroup("/api/indicators").WithTags("Indicators");
+        indicators.MapGet("/", ListIndicators).RequireAuthorization(AuthSetup.StaffPolicy).WithName("ListIndicators").WithSummary("All indicators.");
+        indicators.MapPost("/", CreateIndicator).RequireAuthorization(AuthSetup.FacilitatorPolicy).WithName("CreateIndicator").WithSummary("Creates an indicator (key, name, unit, decimals).");
+        indicators.MapGet("/{id:int}/observations", ListObservations).RequireAuthorization(AuthSetup.StaffPolicy).WithName("ListObservations").WithSummary("The current observations of an indicator, oldest first.");
+        indicators.MapPost("/{id:int}/observations", RecordObservations).RequireAuthorization(AuthSetup.FacilitatorPolicy).WithName("RecordObservations")
+            .WithSummary("Records observations all-or-nothing; a value for a period that has one is a correction (history kept).");
+        indicators.MapPost("/{id:int}/observations/csv", ImportObservationsCsv).RequireAuthorization(AuthSetup.FacilitatorPolicy).DisableAntiforgery()
+            .WithName("ImportObservationsCsv").WithSummary("Imports observations from a CSV file (multipart field 'file'; columns period, value, source, observed_on).");
+
+        var experts = app.MapGroup("/api/experts").WithTags("Experts").RequireAuthorization(AuthSetup.FacilitatorPolicy);
+        experts.MapGet("/", ListExperts).WithName("ListExperts").WithSummary("The expert roster.");
+        experts.MapPost("/", CreateExpert).WithName("CreateExpert").WithSummary("Adds an expert to the roster.");
+        return app;
+    }
+
+    public static async Task<Ok<List<IndicatorDto>>> ListIndicators(PanelRoundDbContext db) =>
+        TypedResults.Ok((await db.Indicators.AsNoTracking().OrderBy(i => i.Name).ToListAsync()).Select(IndicatorDto.From).ToList());
+
+    public static async Task<Results<Created<IndicatorDto>, ValidationProblem, NotFound<ProblemDetails>, Conflict<ProblemDetails>>> CreateIndicator(
+        IndicatorInput input, Catalog catalog, ClaimsPrincipal user) =>
+        (await catalog.CreateIndicatorAsync(input, Audit.ActorOf(user))).ToCreated(IndicatorDto.From, i => $"/api/indicators/{i.Id}");
+
+    public static async Task<Results<Ok<List<ObservationDto>>, NotFound<ProblemDetails>>> ListObservations(int id, PanelRoundDbContext db)
+    {
+        if (!await db.Indicators.AnyAsync(i => i.Id == id))
+        {
+            return ApiResults.NotFound($"Indicator {id} does not exist.");
+        }
+        return TypedResults.Ok((await Catalog.CurrentObservationsAsync(db, id)).Select(ObservationDto.From).ToList());
+    }
+
+    public static async Task<Results<Ok<ObservationImportResult>, ValidationProblem, NotFound<ProblemDetails>, Conflict<ProblemDetails>>> RecordObservations(
+        int id, List<ObservationInput> input, Catalog catalog, ClaimsPrincipal user) =>
+        (await catalog.RecordObservationsAsync(id, input, Audit.ActorOf(user))).ToOk(r => r);
+
+    public static async Task<Results<Ok<ObservationImportResult>, ValidationProblem, NotFound<ProblemDetails>, Conflict<ProblemDetails>>> ImportObservationsCsv(
+        int id, IFormFile file, Catalog catalog, ClaimsPrincipal user)
+    {
+        await using var stream = file.OpenReadStream();
+        var parsed = Catalog.ParseObservationCsv(stream);
+        if (!parsed.IsOk)
+        {
+            return parsed.As<ObservationImportResult>().ToOk(r => r);
+        }
+        return (await catalog.RecordObservationsAsync(id, parsed.Value!, Audit.ActorOf(user), "rows")).ToOk(r => r);
+    }
+
+    public static async Task<Ok<List<ExpertDto>>> ListExperts(PanelRoundDbContext db) =>
+        TypedResults.Ok((await db.Experts.AsNoTracking().OrderBy(e => e.Name).ToListAsync()).Select(ExpertDto.From).ToList());
+
+    public static async Task<Results<Created<ExpertDto>, ValidationProblem, NotFound<ProblemDetails>, Conflict<ProblemDetails>>> CreateExpert(
+        ExpertInput input, Catalog catalog, ClaimsPrincipal user) =>
+        (await catalog.CreateExpertAsync(input, Audit.ActorOf(user))).ToCreated(ExpertDto.From, e => $"/api/experts/{e.Id}");
+}

@@ -1,0 +1,246 @@
+using System.Globalization;
+using System.Text.RegularExpressions;
+using Microsoft.EntityFrameworkCore;
+using PanelRound.Core.Domain;
+using PanelRound.Data;
+using PanelRound.Data.Entities;
+using PanelRound.Web.Infrastructure;
+
+namespace PanelRound.Web.Application;
+
+public sealed record IndicatorInput(string? Key, string? Name, string? UnitLabel, int? Decimals, string? Description);
+
+public sealed record ObservationInput(string? Period, double? Value, string? Source, DateOnly? ObservedOn);
+
+public sealed record ExpertInput(string? Name, string? Email, string? Affiliation, string? Expertise, string? DeclaredInterests, string? ExternalKey = null);
+
+public sealed record ObservationImportResult(int Added, int Corrected, int Unchanged);
+
+/// <summary>Indicators, their observations (with correction history) and the expert roster.</summary>
+public sealed partial class Catalog(PanelRoundDbContext db, TimeProvider clock)
+{
+    public async Task<Outcome<Indicator>> CreateIndicatorAsync(IndicatorInput input, string actor)
+    {
+        var errors = new FieldErrors();
+        var key = errors.Required("key", input.Key, 100, "Key").ToLowerInvariant();
+        if (key.Length > 0 && !KeyPattern().IsMatch(key))
+        {
+            errors.Add("key", "Key uses lower-case letters, digits and dashes, e.g. apt-price-old-harbour.");
+        }
+        var name = errors.Required("name", input.Name, 300, "Name");
+        var unit = errors.Required("unitLabel", input.UnitLabel, 50, "Unit");
+        var decimals = input.Decimals ?? 0;
+        if (decimals is < 0 or > 6)
+        {
+            errors.Add("decimals", "Decimals is 0 to 6.");
+        }
+        var description = errors.Optional("description", input.Description, 4000, "Description");
+        if (key.Length > 0 && await db.Indicators.AnyAsync(i => i.Key == key))
+        {
+            errors.Add("key", $"An indicator with key '{key}' exists already.");
+        }
+        if (errors.Any)
+        {
+            return Outcome<Indicator>.Invalid(errors);
+        }
+        var indicator = new Indicator { Key = key, Name = name, UnitLabel = unit, Decimals = decimals, Description = description, CreatedAt = Now };
+        db.Indicators.Add(indicator);
+        await db.SaveChangesAsync();
+        Audit.Record(db, actor, "indicator.created", "Indicator", indicator.Id, details: new { indicator.Key, indicator.Name });
+        await db.SaveChangesAsync();
+        return Outcome<Indicator>.Ok(indicator);
+    }
+
+    /// <summary>
+    /// Records observations all-or-nothing. A value for a period that has one already is a
+    /// correction: the old row is marked superseded (history kept) and the change is audited.
+    /// </summary>
+    public async Task<Outcome<ObservationImportResult>> RecordObservationsAsync(int indicatorId, IReadOnlyList<ObservationInput> inputs, string actor, string fieldPrefix = "observations")
+    {
+        var indicator = await db.Indicators.FirstOrDefaultAsync(i => i.Id == indicatorId);
+        if (indicator is null)
+        {
+            return Outcome<ObservationImportResult>.NotFound($"Indicator {indicatorId} does not exist.");
+        }
+        var errors = new FieldErrors();
+        if (inputs.Count == 0)
+        {
+            errors.Add(fieldPrefix, "Give at least one observation.");
+        }
+        var parsed = new List<(Period Period, double Value, string? Source, DateOnly? ObservedOn)>();
+        var seen = new HashSet<Period>();
+        for (var i = 0; i < inputs.Count; i++)
+        {
+            var o = inputs[i];
+            var at = $"{fieldPrefix}[{i}]";
+            if (!Period.TryParse(o.Period, out var period))
+            {
+                errors.Add($"{at}.period", $"'{o.Period}' is not a period: write a year such as 2024 or a quarter such as 2024Q3.");
+            }
+            else if (!seen.Add(period.Value))
+            {
+                errors.Add($"{at}.period", $"{period} appears twice.");
+            }
+            if (o.Value is not { } v || !double.IsFinite(v))
+            {
+                errors.Add($"{at}.value", "Value must be a number.");
+            }
+            var source = errors.Optional($"{at}.source", o.Source, 500, "Source");
+            if (period is { } p && o.Value is { } value && double.IsFinite(value))
+            {
+                parsed.Add((p, value, source, o.ObservedOn));
+            }
+        }
+        if (errors.Any)
+        {
+            return Outcome<ObservationImportResult>.Invalid(errors);
+        }
+        var current = await db.Observations.Where(o => o.IndicatorId == indicatorId && o.SupersededAt == null).ToListAsync();
+        var byPeriod = current.ToDictionary(o => o.Period);
+        int added = 0, corrected = 0, unchanged = 0;
+        var now = Now;
+        foreach (var (period, value, source, observedOn) in parsed)
+        {
+            var text = period.ToString();
+            if (byPeriod.TryGetValue(text, out var old))
+            {
+                if (old.Value.Equals(value) && old.Source == source)
+                {
+                    unchanged++;
+                    continue;
+                }
+                old.SupersededAt = now;
+                corrected++;
+                Audit.Record(db, actor, "observation.corrected", "Observation", $"{indicator.Key}/{text}",
+                    details: new { indicator = indicator.Key, period = text, from = old.Value, to = value, oldSource = old.Source, source });
+            }
+            else
+            {
+                added++;
+            }
+            db.Observations.Add(new Observation
+            {
+                IndicatorId = indicatorId, Period = text, PeriodSortKey = period.SortKey, Value = value, Source = source,
+                ObservedOn = observedOn, RecordedAt = now, RecordedBy = actor,
+            });
+        }
+        if (added > 0)
+        {
+            Audit.Record(db, actor, "observations.recorded", "Indicator", indicator.Id, details: new { indicator = indicator.Key, added });
+        }
+        await db.SaveChangesAsync();
+        return Outcome<ObservationImportResult>.Ok(new ObservationImportResult(added, corrected, unchanged));
+    }
+
+    /// <summary>Reads observation rows from CSV text (columns <c>period</c>, <c>value</c>, optional <c>source</c>, <c>observed_on</c>).</summary>
+    public static Outcome<IReadOnlyList<ObservationInput>> ParseObservationCsv(Stream csv)
+    {
+        var errors = new FieldErrors();
+        IReadOnlyList<CsvRow> rows;
+        IReadOnlyList<string> headers;
+        try
+        {
+            (headers, rows) = CsvFiles.Read(csv);
+        }
+        catch (Exception e) when (e is FormatException or InvalidDataException or InvalidOperationException)
+        {
+            errors.Add("file", "The file is not readable as CSV: " + e.Message);
+            return Outcome<IReadOnlyList<ObservationInput>>.Invalid(errors);
+        }
+        foreach (var required in new[] { "period", "value" })
+        {
+            if (!headers.Contains(required))
+            {
+                errors.Add("file", $"The header row has no '{required}' column (needed: period, value; optional: source, observed_on).");
+            }
+        }
+        if (errors.Any)
+        {
+            return Outcome<IReadOnlyList<ObservationInput>>.Invalid(errors);
+        }
+        var list = new List<ObservationInput>();
+        foreach (var r in rows)
+        {
+            double? value = null;
+            if (r["value"] is { } v)
+            {
+                if (double.TryParse(v, NumberStyles.Float, CultureInfo.InvariantCulture, out var d))
+                {
+                    value = d;
+                }
+                else
+                {
+                    errors.Add($"row {r.Row}", $"Row {r.Row}: value '{v}' is not a number (use a dot for decimals).");
+                }
+            }
+            DateOnly? observedOn = null;
+            if (r["observed_on"] is { } on)
+            {
+                if (DateOnly.TryParseExact(on, "yyyy-MM-dd", CultureInfo.InvariantCulture, DateTimeStyles.None, out var date))
+                {
+                    observedOn = date;
+                }
+                else
+                {
+                    errors.Add($"row {r.Row}", $"Row {r.Row}: observed_on '{on}' is not a date (yyyy-MM-dd).");
+                }
+            }
+            list.Add(new ObservationInput(r["period"], value, r["source"], observedOn));
+        }
+        return errors.Any ? Outcome<IReadOnlyList<ObservationInput>>.Invalid(errors) : Outcome<IReadOnlyList<ObservationInput>>.Ok(list);
+    }
+
+    public async Task<Outcome<Expert>> CreateExpertAsync(ExpertInput input, string actor)
+    {
+        var errors = new FieldErrors();
+        var name = errors.Required("name", input.Name, 200, "Name");
+        var email = errors.Required("email", input.Email, 256, "Email").ToLowerInvariant();
+        if (email.Length > 0 && !EmailPattern().IsMatch(email))
+        {
+            errors.Add("email", "Email is not an email address.");
+        }
+        if (email.Length > 0 && await db.Experts.AnyAsync(e => e.Email == email))
+        {
+            errors.Add("email", "An expert with this email is on the roster already.");
+        }
+        var externalKey = errors.Optional("externalKey", input.ExternalKey, 200, "External key");
+        if (externalKey is not null && await db.Experts.AnyAsync(e => e.ExternalKey == externalKey))
+        {
+            errors.Add("externalKey", "An expert with this external key is on the roster already.");
+        }
+        var expert = new Expert
+        {
+            Name = name, Email = email,
+            Affiliation = errors.Optional("affiliation", input.Affiliation, 200, "Affiliation"),
+            Expertise = errors.Optional("expertise", input.Expertise, 500, "Expertise"),
+            DeclaredInterests = errors.Optional("declaredInterests", input.DeclaredInterests, 2000, "Declared interests"),
+            ExternalKey = externalKey, CreatedAt = Now,
+        };
+        if (errors.Any)
+        {
+            return Outcome<Expert>.Invalid(errors);
+        }
+        db.Experts.Add(expert);
+        await db.SaveChangesAsync();
+        Audit.Record(db, actor, "expert.created", "Expert", expert.Id);
+        await db.SaveChangesAsync();
+        return Outcome<Expert>.Ok(expert);
+    }
+
+    /// <summary>The current observations of an indicator, oldest first; optionally only those ending before a date.</summary>
+    public static async Task<IReadOnlyList<Observation>> CurrentObservationsAsync(PanelRoundDbContext db, int indicatorId, DateOnly? endingBefore = null)
+    {
+        var rows = await db.Observations.AsNoTracking()
+            .Where(o => o.IndicatorId == indicatorId && o.SupersededAt == null)
+            .OrderBy(o => o.PeriodSortKey).ToListAsync();
+        return endingBefore is { } d ? rows.Where(o => Period.Parse(o.Period).EndDate < d).ToList() : rows;
+    }
+
+    private DateTime Now => clock.GetUtcNow().UtcDateTime;
+
+    [GeneratedRegex("^[a-z0-9][a-z0-9-]*$")]
+    private static partial Regex KeyPattern();
+
+    [GeneratedRegex(@"^[^@\s]+@[^@\s]+\.[^@\s]+$")]
+    private static partial Regex EmailPattern();
+}

@@ -1,0 +1,55 @@
+using PanelRound.Core.Statistics;
+using PanelRound.Data;
+using PanelRound.Data.Entities;
+
+namespace PanelRound.Web.Application;
+
+/// <summary>
+/// Computes a panel's consensus per question-period from the answers counted in a closed round:
+/// the trimmed median for Point questions (band Q1-Q3 of the retained answers), quantile
+/// averaging of the experts' P10/P50/P90 for Range questions (band P10-P90), with equal weights
+/// or the panel members' track-record weights.
+/// </summary>
+public sealed class ConsensusPublisher(PanelRoundDbContext db, TimeProvider clock, IMemberWeights weights)
+{
+    public async Task<IReadOnlyList<ConsensusEntry>> ComputeAsync(Panel panel, Round round, ConsensusWeighting? weighting = null)
+    {
+        var answers = await PanelWorkflow.CountedAnswersAsync(db, round.Id);
+        var settings = FeedbackCalculator.SettingsOf(panel.Settings);
+        var mode = weighting ?? panel.Settings.Weighting;
+        var memberWeights = mode == ConsensusWeighting.TrackRecord ? await weights.ForPanelAsync(panel.Id, panel.ConcludedAt ?? clock.GetUtcNow().UtcDateTime) : null;
+        var now = clock.GetUtcNow().UtcDateTime;
+        var entries = new List<ConsensusEntry>();
+        foreach (var q in panel.Questions.OrderBy(q => q.Order))
+        {
+            foreach (var period in q.TargetPeriods.Split(','))
+            {
+                var forPeriod = answers.Where(a => a.QuestionId == q.Id && a.Period == period).ToList();
+                if (forPeriod.Count == 0)
+                {
+                    continue;
+                }
+                var w = memberWeights is null ? null : forPeriod.Select(a => memberWeights.GetValueOrDefault(a.MembershipId, 0)).ToList();
+                if (w is not null && w.All(x => x <= 0))
+                {
+                    w = null;
+                }
+                var value = q.Format == ResponseFormat.Range
+                    ? Consensus.ForRange(forPeriod.Select(a => new RangeAnswer(a.P10!.Value, a.P50!.Value, a.P90!.Value)).ToList(), settings, w)
+                    : Consensus.ForPoint(forPeriod.Select(a => a.Value!.Value).ToList(), settings, w);
+                entries.Add(new ConsensusEntry
+                {
+                    PanelId = panel.Id, QuestionId = q.Id, Period = period, Value = value.Value, Low = value.Low, High = value.High,
+                    N = value.N, Method = value.Method.ToString(), PublishedAt = now,
+                });
+            }
+        }
+        return entries;
+    }
+}
+
+/// <summary>Track-record weights of a panel's memberships (by membership id), known at a moment; null when none apply.</summary>
+public interface IMemberWeights
+{
+    Task<IReadOnlyDictionary<int, double>?> ForPanelAsync(int panelId, DateTime asOf);
+}

@@ -1,0 +1,127 @@
+using System.Text.Json;
+using Microsoft.EntityFrameworkCore;
+using PanelRound.Core.Statistics;
+using PanelRound.Data;
+using PanelRound.Data.Entities;
+
+namespace PanelRound.Web.Application;
+
+/// <summary>One round of one question-period, for the facilitator.</summary>
+public sealed record RoundResult(
+    int Round, bool Frozen, FeedbackView Feedback, ConvergenceAssessment Convergence, StabilityAssessment? Stability,
+    IReadOnlyList<string> OutlierCodes);
+
+public sealed record PeriodResult(string Period, IReadOnlyList<RoundResult> Rounds, StopSuggestion? Suggestion, ConsensusEntry? Consensus);
+
+public sealed record QuestionResult(
+    int QuestionId, string Label, ResponseFormat Format, string Unit, int Decimals, IReadOnlyList<SeriesPoint> Reference,
+    IReadOnlyList<PeriodResult> Periods, StopReason Suggestion, string SuggestionText, IReadOnlyList<string> Rationales);
+
+public sealed record PanelResultsView(int PanelId, string Title, PanelState State, PanelSettings Settings, IReadOnlyList<QuestionResult> Questions);
+
+/// <summary>
+/// The facilitator's results per question: the distribution per round (frozen for closed rounds,
+/// live for the open one), convergence and stability across rounds, outlier flags by panel code,
+/// unattributed rationales and the statistics core's stop suggestion.
+/// </summary>
+public sealed class PanelResults(PanelRoundDbContext db)
+{
+    public async Task<PanelResultsView?> BuildAsync(int panelId)
+    {
+        var panel = await db.Panels.AsNoTracking().Include(p => p.Questions).ThenInclude(q => q.Indicator).Include(p => p.Rounds)
+            .FirstOrDefaultAsync(p => p.Id == panelId);
+        if (panel is null)
+        {
+            return null;
+        }
+        var settings = FeedbackCalculator.SettingsOf(panel.Settings);
+        var codes = await db.Memberships.AsNoTracking().Where(m => m.PanelId == panelId).ToDictionaryAsync(m => m.Id, m => m.PanelCode);
+        var rounds = panel.Rounds.OrderBy(r => r.Number).ToList();
+        var answersByRound = new Dictionary<int, IReadOnlyList<CountedAnswer>>();
+        foreach (var r in rounds)
+        {
+            answersByRound[r.Number] = await PanelWorkflow.CountedAnswersAsync(db, r.Id);
+        }
+        var frozen = (await db.RoundFeedback.AsNoTracking().Where(f => rounds.Select(r => r.Id).Contains(f.RoundId)).ToListAsync())
+            .ToDictionary(f => (f.RoundId, f.QuestionId, f.Period));
+        var consensus = await db.Consensus.AsNoTracking().Where(c => c.PanelId == panelId).ToListAsync();
+
+        var questions = new List<QuestionResult>();
+        foreach (var q in panel.Questions.OrderBy(q => q.Order))
+        {
+            var periods = new List<PeriodResult>();
+            foreach (var period in q.TargetPeriods.Split(','))
+            {
+                var list = new List<RoundResult>();
+                RoundResult? previous = null;
+                foreach (var r in rounds)
+                {
+                    var answers = answersByRound[r.Number].Where(a => a.QuestionId == q.Id && a.Period == period).ToList();
+                    var isFrozen = frozen.TryGetValue((r.Id, q.Id, period), out var f);
+                    var view = isFrozen ? FeedbackView.FromJson(f!.StatisticsJson) : FeedbackCalculator.Compute(q, period, answers, settings);
+                    var convergence = Convergence.Assess(view.Headline?.RelativeIqr, previous?.Feedback.Headline?.RelativeIqr, view.N,
+                        panel.Settings.ConsensusThreshold);
+                    StabilityAssessment? stability = null;
+                    if (r.Number > 1)
+                    {
+                        var before = answersByRound[r.Number - 1].Where(a => a.QuestionId == q.Id && a.Period == period).ToDictionary(a => a.MembershipId);
+                        var pairs = answers.Where(a => before.ContainsKey(a.MembershipId))
+                            .Select(a => new PairedAnswer(before[a.MembershipId].Headline, a.Headline)).ToList();
+                        stability = Stability.Assess(pairs, panel.Settings.StabilityThreshold);
+                    }
+                    var result = new RoundResult(r.Number, isFrozen, view, convergence, stability, OutlierCodes(answers, settings, codes));
+                    list.Add(result);
+                    previous = result;
+                }
+                var last = list.LastOrDefault();
+                var suggestion = last is null ? null : StopAdvice.Suggest(last.Convergence, last.Stability, last.Round, panel.Settings.RoundCap);
+                periods.Add(new PeriodResult(period, list, suggestion, consensus.FirstOrDefault(c => c.QuestionId == q.Id && c.Period == period)));
+            }
+            var (reason, text) = Summarise(periods);
+            var latestFrozen = rounds.Where(r => r.State == RoundState.Closed).MaxBy(r => r.Number);
+            var rationales = latestFrozen is null ? [] : q.TargetPeriods.Split(',')
+                .Select(p => frozen.GetValueOrDefault((latestFrozen.Id, q.Id, p)))
+                .Where(f => f is not null && !f.Withheld)
+                .SelectMany(f => JsonSerializer.Deserialize<List<string>>(f!.RationalesJson) ?? []).Distinct().Order(StringComparer.Ordinal).ToList();
+            var reference = (await Catalog.CurrentObservationsAsync(db, q.IndicatorId, panel.StartsOn)).Select(o => new SeriesPoint(o.Period, o.Value)).ToList();
+            questions.Add(new QuestionResult(q.Id, q.Label, q.Format, q.Indicator!.UnitLabel, q.Indicator.Decimals, reference, periods, reason, text, rationales));
+        }
+        return new PanelResultsView(panel.Id, panel.Title, panel.State, panel.Settings, questions);
+    }
+
+    /// <summary>The panel codes whose answers the outlier rule excludes (staff only: codes, never names).</summary>
+    private static IReadOnlyList<string> OutlierCodes(IReadOnlyList<CountedAnswer> answers, FeedbackSettings settings, IReadOnlyDictionary<int, string> codes)
+    {
+        var usable = answers.Where(a => double.IsFinite(a.Headline)).ToList();
+        var result = Core.Statistics.RoundFeedback.ForPoint(usable.Select(a => a.Headline).ToList(), settings);
+        if (result.Feedback is not { } f)
+        {
+            return [];
+        }
+        return usable.Where((_, i) => f.IsOutlier[i]).Select(a => codes.GetValueOrDefault(a.MembershipId, "?")).Order(StringComparer.Ordinal).ToList();
+    }
+
+    /// <summary>A question stops when all its periods may stop; the weakest period's reason is the question's.</summary>
+    private static (StopReason, string) Summarise(IReadOnlyList<PeriodResult> periods)
+    {
+        var suggestions = periods.Select(p => p.Suggestion).Where(s => s is not null).Select(s => s!).ToList();
+        if (suggestions.Count == 0)
+        {
+            return (StopReason.KeepGoing, "No round has answers yet.");
+        }
+        if (suggestions.All(s => s.Reason == StopReason.ConsensusReached))
+        {
+            return (StopReason.ConsensusReached, "Consensus reached in every target period.");
+        }
+        if (suggestions.All(s => s.Reason is StopReason.ConsensusReached or StopReason.Stable))
+        {
+            return (StopReason.Stable, "Every target period has reached consensus or stable answers.");
+        }
+        if (suggestions.Any(s => s.Reason == StopReason.RoundCapReached))
+        {
+            return (StopReason.RoundCapReached, "The round cap is reached.");
+        }
+        var open = periods.Where(p => p.Suggestion?.Reason == StopReason.KeepGoing).Select(p => p.Period);
+        return (StopReason.KeepGoing, "Another round may help for " + string.Join(", ", open) + ".");
+    }
+}

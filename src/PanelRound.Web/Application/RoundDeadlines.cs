@@ -1,0 +1,95 @@
+using Microsoft.EntityFrameworkCore;
+using PanelRound.Data;
+using PanelRound.Data.Entities;
+
+namespace PanelRound.Web.Application;
+
+/// <summary>The <c>Rounds</c> configuration section.</summary>
+public sealed class RoundOptions
+{
+    public const string Section = "Rounds";
+
+    /// <summary><c>Rounds:DeadlineCheckSeconds</c>: how often open rounds past their deadline are closed; 0 turns it off.</summary>
+    public int DeadlineCheckSeconds { get; set; } = 30;
+}
+
+/// <summary>
+/// Closes rounds at their deadline. Several web instances may run it: each pass first takes a
+/// lease row in the database, so only one instance closes rounds at a time.
+/// </summary>
+public sealed class RoundDeadlineService(IServiceScopeFactory scopes, Microsoft.Extensions.Options.IOptions<RoundOptions> options, TimeProvider clock, ILogger<RoundDeadlineService> log)
+    : BackgroundService
+{
+    private const string LeaseName = "round-deadlines";
+    private readonly string _holder = $"{Environment.MachineName}:{Environment.ProcessId}:{Guid.NewGuid():N}";
+
+    protected override async Task ExecuteAsync(CancellationToken stoppingToken)
+    {
+        var seconds = options.Value.DeadlineCheckSeconds;
+        if (seconds <= 0)
+        {
+            return;
+        }
+        using var timer = new PeriodicTimer(TimeSpan.FromSeconds(seconds), clock);
+        do
+        {
+            try
+            {
+                await CloseDueRoundsAsync(stoppingToken);
+            }
+            catch (Exception e) when (e is DbUpdateException or InvalidOperationException or TimeoutException)
+            {
+                log.LogWarning(e, "Closing rounds at their deadline failed; will try again.");
+            }
+        }
+        while (await timer.WaitForNextTickAsync(stoppingToken));
+    }
+
+    /// <summary>One pass: take the lease, then close every open round whose deadline has passed.</summary>
+    public async Task<int> CloseDueRoundsAsync(CancellationToken ct = default)
+    {
+        using var scope = scopes.CreateScope();
+        var db = scope.ServiceProvider.GetRequiredService<PanelRoundDbContext>();
+        var now = clock.GetUtcNow().UtcDateTime;
+        if (!await TryTakeLeaseAsync(db, now, ct))
+        {
+            return 0;
+        }
+        var due = await db.Rounds.AsNoTracking().Where(r => r.State == RoundState.Open && r.ClosesAt <= now)
+            .Select(r => new { r.PanelId, r.Number }).ToListAsync(ct);
+        var workflow = scope.ServiceProvider.GetRequiredService<PanelWorkflow>();
+        var closed = 0;
+        foreach (var r in due)
+        {
+            var outcome = await workflow.CloseRoundAsync(r.PanelId, r.Number, "system:deadline");
+            closed += outcome.IsOk ? 1 : 0;
+        }
+        return closed;
+    }
+
+    private async Task<bool> TryTakeLeaseAsync(PanelRoundDbContext db, DateTime now, CancellationToken ct)
+    {
+        var until = now.AddSeconds(Math.Max(60, options.Value.DeadlineCheckSeconds * 2));
+        var updated = await db.JobLeases.Where(l => l.Name == LeaseName && (l.ExpiresAt < now || l.Holder == _holder))
+            .ExecuteUpdateAsync(s => s.SetProperty(l => l.Holder, _holder).SetProperty(l => l.ExpiresAt, until), ct);
+        if (updated == 1)
+        {
+            return true;
+        }
+        if (await db.JobLeases.AnyAsync(l => l.Name == LeaseName, ct))
+        {
+            return false;
+        }
+        db.JobLeases.Add(new JobLease { Name = LeaseName, Holder = _holder, ExpiresAt = until });
+        try
+        {
+            await db.SaveChangesAsync(ct);
+            return true;
+        }
+        catch (DbUpdateException)
+        {
+            // Another instance inserted the lease first.
+            return false;
+        }
+    }
+}
