@@ -2,6 +2,7 @@ using Microsoft.EntityFrameworkCore;
 using PanelRound.Data;
 using PanelRound.Web.Apis;
 using PanelRound.Web.Application;
+using PanelRound.Web.Application.Scoring;
 using PanelRound.Web.Demo;
 using PanelRound.Web.Infrastructure;
 
@@ -29,7 +30,7 @@ public static class WebSetup
         services.AddScoped<ConsensusPublisher>();
         services.AddScoped<ExpertAnswers>();
         services.AddScoped<PanelResults>();
-        services.AddScoped<IMemberWeights, TrackRecordWeightsService>();
+        services.AddPanelRoundScoring();
         services.AddSingleton<IMailer, Mailer>();
         services.AddSingleton<RoundDeadlineService>();
         services.AddHostedService(sp => sp.GetRequiredService<RoundDeadlineService>());
@@ -81,6 +82,7 @@ public static class WebSetup
         app.MapPanelsApi();
         app.MapExpertApi();
         app.MapAuditApi();
+        app.MapScoringApis();
         return app;
     }
 

@@ -1,4 +1,4 @@
-namespace PanelRound.Web.Application;
+namespace PanelRound.Web.Application.Scoring;
 
 /// <summary>Track-record weights of a panel's members from their scored forecasts before a moment.</summary>
 public sealed class TrackRecordWeightsService : IMemberWeights
