@@ -13,6 +13,9 @@ public static class WebSetup
 {
     public static IHostApplicationBuilder AddPanelRoundWeb(this IHostApplicationBuilder builder)
     {
+        // Numbers in forms, CSV and the API are invariant (a dot for decimals), whatever the server's locale.
+        System.Globalization.CultureInfo.DefaultThreadCurrentCulture = System.Globalization.CultureInfo.InvariantCulture;
+        System.Globalization.CultureInfo.DefaultThreadCurrentUICulture = System.Globalization.CultureInfo.InvariantCulture;
         var services = builder.Services;
         services.AddSingleton(TimeProvider.System);
         services.AddProblemDetails();

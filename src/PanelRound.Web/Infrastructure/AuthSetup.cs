@@ -72,8 +72,8 @@ public static class AuthSetup
                 o.Cookie.SameSite = SameSiteMode.Lax;
                 o.ExpireTimeSpan = TimeSpan.FromDays(30);
                 o.SlidingExpiration = true;
-                o.LoginPath = "/Expert/LinkNeeded";
-                o.AccessDeniedPath = "/Expert/LinkNeeded";
+                o.LoginPath = "/expert/link-needed";
+                o.AccessDeniedPath = "/expert/link-needed";
                 o.Events.OnRedirectToLogin = ctx => RedirectOrStatus(ctx, StatusCodes.Status401Unauthorized);
             });
 

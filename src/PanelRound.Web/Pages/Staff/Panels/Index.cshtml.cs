@@ -10,5 +10,5 @@ public class IndexModel(PanelRoundDbContext db) : PageModel
     public IReadOnlyList<Panel> Panels { get; private set; } = [];
 
     public async Task OnGetAsync() =>
-        Panels = await db.Panels.AsNoTracking().OrderByDescending(p => p.StartsOn).ToListAsync();
+        Panels = await db.Panels.AsNoTracking().Include(p => p.Rounds).OrderByDescending(p => p.StartsOn).ToListAsync();
 }

@@ -1,0 +1,95 @@
+using System.Text;
+using Microsoft.AspNetCore.Mvc;
+using Microsoft.AspNetCore.Mvc.RazorPages;
+using Microsoft.EntityFrameworkCore;
+using PanelRound.Data;
+using PanelRound.Data.Entities;
+using PanelRound.Web.Application;
+using PanelRound.Web.Infrastructure;
+
+namespace PanelRound.Web.Pages.Staff.Indicators;
+
+/// <summary>An indicator's observations: chart, table, correction history, and entry by form, paste or CSV upload.</summary>
+public class DetailsModel(PanelRoundDbContext db, Catalog catalog) : PageModel
+{
+    [BindProperty(SupportsGet = true)]
+    public int Id { get; set; }
+
+    public Indicator Indicator { get; private set; } = null!;
+
+    public IReadOnlyList<Observation> Current { get; private set; } = [];
+
+    public IReadOnlyList<Observation> Superseded { get; private set; } = [];
+
+    [BindProperty]
+    public string? Pasted { get; set; }
+
+    [BindProperty]
+    public IFormFile? Upload { get; set; }
+
+    [TempData]
+    public string? Notice { get; set; }
+
+    public List<string> ImportErrors { get; } = [];
+
+    public async Task<IActionResult> OnGetAsync()
+    {
+        var indicator = await db.Indicators.AsNoTracking().FirstOrDefaultAsync(i => i.Id == Id);
+        if (indicator is null)
+        {
+            return NotFound();
+        }
+        Indicator = indicator;
+        var all = await db.Observations.AsNoTracking().Where(o => o.IndicatorId == Id).OrderBy(o => o.PeriodSortKey).ThenBy(o => o.RecordedAt).ToListAsync();
+        Current = all.Where(o => o.SupersededAt == null).ToList();
+        Superseded = all.Where(o => o.SupersededAt != null).ToList();
+        return Page();
+    }
+
+    public async Task<IActionResult> OnPostAsync()
+    {
+        if (!User.IsInRole(Roles.Facilitator) && !User.IsInRole(Roles.Administrator) && !User.IsInRole(Roles.Reviewer))
+        {
+            return Forbid();
+        }
+        Stream? stream = Upload is { Length: > 0 } file ? file.OpenReadStream()
+            : string.IsNullOrWhiteSpace(Pasted) ? null : new MemoryStream(Encoding.UTF8.GetBytes(WithHeader(Pasted)));
+        if (stream is null)
+        {
+            ImportErrors.Add("Paste rows or choose a CSV file.");
+            return await OnGetAsync();
+        }
+        await using (stream)
+        {
+            var parsed = Catalog.ParseObservationCsv(stream);
+            var outcome = parsed.IsOk
+                ? await catalog.RecordObservationsAsync(Id, parsed.Value!, Audit.ActorOf(User), "row")
+                : parsed.As<ObservationImportResult>();
+            if (outcome.IsOk)
+            {
+                var r = outcome.Value!;
+                Notice = $"Saved: {r.Added} added, {r.Corrected} corrected (history kept), {r.Unchanged} unchanged.";
+                return RedirectToPage(new { id = Id });
+            }
+            ImportErrors.AddRange(outcome.Errors.SelectMany(e => e.Value.Select(m => e.Key.StartsWith("row[", StringComparison.Ordinal) ? $"{RowLabel(e.Key)}: {m}" : m)));
+            if (outcome.Message is { } msg && outcome.Kind != OutcomeKind.Invalid)
+            {
+                ImportErrors.Add(msg);
+            }
+        }
+        ImportErrors.Insert(0, "Nothing was saved: fix these rows and try again.");
+        return await OnGetAsync();
+    }
+
+    private static string RowLabel(string key) =>
+        int.TryParse(key.AsSpan(4, key.IndexOf(']', StringComparison.Ordinal) - 4), out var i) ? $"Row {i + 1}" : key;
+
+    /// <summary>Pasted rows may come without a header: add one when the first line does not name the columns.</summary>
+    private static string WithHeader(string text)
+    {
+        var first = text.TrimStart().Split('\n')[0].ToLowerInvariant();
+        var sep = text.Contains('\t', StringComparison.Ordinal) ? "\t" : ",";
+        var normalised = sep == "\t" ? text.Replace('\t', ',') : text;
+        return first.Contains("period", StringComparison.Ordinal) ? normalised : "period,value,source\n" + normalised;
+    }
+}

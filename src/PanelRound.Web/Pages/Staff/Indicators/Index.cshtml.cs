@@ -1,0 +1,62 @@
+using Microsoft.AspNetCore.Mvc;
+using Microsoft.AspNetCore.Mvc.RazorPages;
+using Microsoft.EntityFrameworkCore;
+using PanelRound.Data;
+using PanelRound.Data.Entities;
+using PanelRound.Web.Application;
+using PanelRound.Web.Infrastructure;
+
+namespace PanelRound.Web.Pages.Staff.Indicators;
+
+public class IndexModel(PanelRoundDbContext db, Catalog catalog) : PageModel
+{
+    public sealed class IndicatorForm
+    {
+        public string? Key { get; set; }
+
+        public string? Name { get; set; }
+
+        public string? UnitLabel { get; set; }
+
+        public int? Decimals { get; set; }
+
+        public string? Description { get; set; }
+    }
+
+    public sealed record Row(Indicator Indicator, int Observations, string? First, string? Last);
+
+    [BindProperty]
+    public IndicatorForm Input { get; set; } = new();
+
+    public IReadOnlyList<Row> Rows { get; private set; } = [];
+
+    public async Task OnGetAsync()
+    {
+        var indicators = await db.Indicators.AsNoTracking().OrderBy(i => i.Name).ToListAsync();
+        var stats = await db.Observations.AsNoTracking().Where(o => o.SupersededAt == null).GroupBy(o => o.IndicatorId)
+            .Select(g => new { g.Key, Count = g.Count(), Min = g.Min(o => o.PeriodSortKey), Max = g.Max(o => o.PeriodSortKey) }).ToListAsync();
+        Rows = indicators.Select(i =>
+        {
+            var s = stats.FirstOrDefault(x => x.Key == i.Id);
+            return new Row(i, s?.Count ?? 0, s is null ? null : Label(s.Min), s is null ? null : Label(s.Max));
+        }).ToList();
+    }
+
+    private static string Label(int sortKey) => sortKey % 10 == 5 ? (sortKey / 10).ToString(System.Globalization.CultureInfo.InvariantCulture) : $"{sortKey / 10}Q{sortKey % 10}";
+
+    public async Task<IActionResult> OnPostAsync()
+    {
+        if (!User.IsInRole(Roles.Facilitator) && !User.IsInRole(Roles.Administrator))
+        {
+            return Forbid();
+        }
+        var outcome = await catalog.CreateIndicatorAsync(new IndicatorInput(Input.Key, Input.Name, Input.UnitLabel, Input.Decimals, Input.Description), Audit.ActorOf(User));
+        if (!outcome.IsOk)
+        {
+            ModelState.AddOutcome(outcome);
+            await OnGetAsync();
+            return Page();
+        }
+        return RedirectToPage("Details", new { id = outcome.Value!.Id });
+    }
+}

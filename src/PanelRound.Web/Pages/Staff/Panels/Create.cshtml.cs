@@ -1,0 +1,29 @@
+using Microsoft.AspNetCore.Authorization;
+using Microsoft.AspNetCore.Mvc;
+using Microsoft.AspNetCore.Mvc.RazorPages;
+using PanelRound.Web.Application;
+using PanelRound.Web.Infrastructure;
+
+namespace PanelRound.Web.Pages.Staff.Panels;
+
+[Authorize(Policy = AuthSetup.FacilitatorPolicy)]
+public class CreateModel(PanelWorkflow workflow) : PageModel
+{
+    [BindProperty]
+    public PanelForm Input { get; set; } = new() { TargetPeriods = $"{DateTime.UtcNow.Year + 1}-{DateTime.UtcNow.Year + 5}", StartsOn = DateOnly.FromDateTime(DateTime.UtcNow) };
+
+    public void OnGet()
+    {
+    }
+
+    public async Task<IActionResult> OnPostAsync()
+    {
+        var outcome = await workflow.CreatePanelAsync(Input.ToInput(), Audit.ActorOf(User));
+        if (!outcome.IsOk)
+        {
+            ModelState.AddOutcome(outcome);
+            return Page();
+        }
+        return RedirectToPage("Details", new { id = outcome.Value!.Id });
+    }
+}

@@ -1,0 +1,107 @@
+using Microsoft.AspNetCore.Authorization;
+using Microsoft.AspNetCore.Mvc;
+using Microsoft.AspNetCore.Mvc.RazorPages;
+using Microsoft.EntityFrameworkCore;
+using PanelRound.Data;
+using PanelRound.Data.Entities;
+using PanelRound.Web.Apis;
+using PanelRound.Web.Application;
+using PanelRound.Web.Infrastructure;
+
+namespace PanelRound.Web.Pages.Staff.Panels;
+
+/// <summary>The facilitator's panel page: questions, roster and links, rounds with the response tracker, conclusion.</summary>
+[Authorize(Policy = AuthSetup.FacilitatorPolicy)]
+public class DetailsModel(PanelRoundDbContext db, PanelWorkflow workflow) : PageModel
+{
+    [BindProperty(SupportsGet = true)]
+    public int Id { get; set; }
+
+    public Panel Panel { get; private set; } = null!;
+
+    public IReadOnlyList<Expert> Roster { get; private set; } = [];
+
+    public IReadOnlyDictionary<int, bool> Responded { get; private set; } = new Dictionary<int, bool>();
+
+    public string BriefHtml { get; private set; } = "";
+
+    [TempData]
+    public string? IssuedLink { get; set; }
+
+    [TempData]
+    public string? Notice { get; set; }
+
+    [BindProperty]
+    public DateTime? ClosesAt { get; set; }
+
+    public Round? OpenRound => Panel.Rounds.FirstOrDefault(r => r.State == RoundState.Open);
+
+    public async Task<IActionResult> OnGetAsync()
+    {
+        var panel = await db.Panels.AsNoTracking().Include(p => p.Questions).ThenInclude(q => q.Indicator)
+            .Include(p => p.Rounds).Include(p => p.Memberships).ThenInclude(m => m.Expert).FirstOrDefaultAsync(p => p.Id == Id);
+        if (panel is null)
+        {
+            return NotFound();
+        }
+        Panel = panel;
+        BriefHtml = Markdown.ToSafeHtml(panel.Brief);
+        var members = panel.Memberships.Select(m => m.ExpertId).ToHashSet();
+        Roster = await db.Experts.AsNoTracking().Where(e => !members.Contains(e.Id)).OrderBy(e => e.Name).ToListAsync();
+        if (OpenRound is { } open)
+        {
+            var answered = await db.Estimates.AsNoTracking().Where(e => e.RoundId == open.Id && !e.IsDraft).Select(e => e.MembershipId).Distinct().ToListAsync();
+            Responded = panel.Memberships.ToDictionary(m => m.Id, m => answered.Contains(m.Id));
+        }
+        ClosesAt ??= DateTime.UtcNow.Date.AddDays(15).AddHours(17);
+        return Page();
+    }
+
+    public async Task<IActionResult> OnPostAddMemberAsync(int expertId) =>
+        await LinkResult(await workflow.AddMemberAsync(Id, expertId, Audit.ActorOf(User), ApiResults.BaseUrl(Request)));
+
+    public async Task<IActionResult> OnPostReissueAsync(int membershipId) =>
+        await LinkResult(await workflow.ReissueLinkAsync(Id, membershipId, Audit.ActorOf(User), ApiResults.BaseUrl(Request)));
+
+    public async Task<IActionResult> OnPostRevokeAsync(int membershipId) =>
+        await Done(await workflow.RevokeLinkAsync(Id, membershipId, Audit.ActorOf(User)), "Link revoked.");
+
+    public async Task<IActionResult> OnPostRemoveQuestionAsync(int questionId) =>
+        await Done(await workflow.RemoveQuestionAsync(Id, questionId, Audit.ActorOf(User)), "Question removed.");
+
+    public async Task<IActionResult> OnPostOpenRoundAsync() =>
+        await Done(await workflow.OpenRoundAsync(Id, ClosesAt is { } c ? DateTime.SpecifyKind(c, DateTimeKind.Utc) : null, Audit.ActorOf(User)), "Round opened.");
+
+    public async Task<IActionResult> OnPostCloseRoundAsync(int number) =>
+        await Done(await workflow.CloseRoundAsync(Id, number, Audit.ActorOf(User)), $"Round {number} closed; its feedback is frozen.");
+
+    public async Task<IActionResult> OnPostRemindAsync()
+    {
+        var outcome = await workflow.SendRemindersAsync(Id, Audit.ActorOf(User));
+        return await Done(outcome, $"Reminders sent: {outcome.Value}.");
+    }
+
+    public async Task<IActionResult> OnPostConcludeAsync() =>
+        await Done(await workflow.ConcludeAsync(Id, Audit.ActorOf(User)), "Panel concluded; the consensus is published.");
+
+    private async Task<IActionResult> LinkResult(Outcome<IssuedLink> outcome)
+    {
+        if (outcome.IsOk)
+        {
+            IssuedLink = $"{outcome.Value!.PanelCode}|{ApiResults.BaseUrl(Request)}{outcome.Value.Path}";
+            return RedirectToPage(new { id = Id });
+        }
+        return await Done(outcome, "");
+    }
+
+    private async Task<IActionResult> Done<T>(Outcome<T> outcome, string notice)
+    {
+        if (outcome.IsOk)
+        {
+            Notice = notice;
+            return RedirectToPage(new { id = Id });
+        }
+        ModelState.AddOutcome(outcome, "");
+        return await OnGetAsync();
+    }
+}

@@ -1,0 +1,45 @@
+using Microsoft.AspNetCore.Authorization;
+using Microsoft.AspNetCore.Mvc;
+using Microsoft.AspNetCore.Mvc.RazorPages;
+using PanelRound.Data;
+using PanelRound.Data.Entities;
+using PanelRound.Web.Application;
+using PanelRound.Web.Infrastructure;
+
+namespace PanelRound.Web.Pages.Staff.Panels;
+
+[Authorize(Policy = AuthSetup.FacilitatorPolicy)]
+public class EditModel(PanelRoundDbContext db, PanelWorkflow workflow) : PageModel
+{
+    [BindProperty(SupportsGet = true)]
+    public int Id { get; set; }
+
+    [BindProperty]
+    public PanelForm Input { get; set; } = new();
+
+    public async Task<IActionResult> OnGetAsync()
+    {
+        var panel = await db.Panels.FindAsync(Id);
+        if (panel is null)
+        {
+            return NotFound();
+        }
+        if (panel.State != PanelState.Draft)
+        {
+            return RedirectToPage("Details", new { id = Id });
+        }
+        Input = PanelForm.From(panel);
+        return Page();
+    }
+
+    public async Task<IActionResult> OnPostAsync()
+    {
+        var outcome = await workflow.UpdatePanelAsync(Id, Input.ToInput(), Audit.ActorOf(User));
+        if (!outcome.IsOk)
+        {
+            ModelState.AddOutcome(outcome);
+            return Page();
+        }
+        return RedirectToPage("Details", new { id = Id });
+    }
+}

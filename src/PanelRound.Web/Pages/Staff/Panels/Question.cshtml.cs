@@ -1,0 +1,89 @@
+using Microsoft.AspNetCore.Authorization;
+using Microsoft.AspNetCore.Mvc;
+using Microsoft.AspNetCore.Mvc.RazorPages;
+using Microsoft.EntityFrameworkCore;
+using PanelRound.Data;
+using PanelRound.Data.Entities;
+using PanelRound.Web.Application;
+using PanelRound.Web.Infrastructure;
+
+namespace PanelRound.Web.Pages.Staff.Panels;
+
+[Authorize(Policy = AuthSetup.FacilitatorPolicy)]
+public class QuestionModel(PanelRoundDbContext db, PanelWorkflow workflow) : PageModel
+{
+    public sealed class QuestionForm
+    {
+        public int? IndicatorId { get; set; }
+
+        public string? Label { get; set; }
+
+        public string? HelpText { get; set; }
+
+        public ResponseFormat Format { get; set; }
+
+        public double? HardMin { get; set; }
+
+        public double? HardMax { get; set; }
+
+        public double? PlausibleMin { get; set; }
+
+        public double? PlausibleMax { get; set; }
+
+        public string? TargetPeriods { get; set; }
+    }
+
+    [BindProperty(SupportsGet = true)]
+    public int PanelId { get; set; }
+
+    [BindProperty(SupportsGet = true)]
+    public int? QuestionId { get; set; }
+
+    [BindProperty]
+    public QuestionForm Input { get; set; } = new();
+
+    public IReadOnlyList<Indicator> Indicators { get; private set; } = [];
+
+    public string PanelPeriods { get; private set; } = "";
+
+    public async Task<IActionResult> OnGetAsync()
+    {
+        var panel = await db.Panels.AsNoTracking().Include(p => p.Questions).FirstOrDefaultAsync(p => p.Id == PanelId);
+        if (panel is null)
+        {
+            return NotFound();
+        }
+        if (QuestionId is { } id && panel.Questions.FirstOrDefault(q => q.Id == id) is { } q)
+        {
+            Input = new QuestionForm
+            {
+                IndicatorId = q.IndicatorId, Label = q.Label, HelpText = q.HelpText, Format = q.Format, HardMin = q.HardMin, HardMax = q.HardMax,
+                PlausibleMin = q.PlausibleMin, PlausibleMax = q.PlausibleMax, TargetPeriods = q.TargetPeriods,
+            };
+        }
+        await LoadAsync();
+        return Page();
+    }
+
+    public async Task<IActionResult> OnPostAsync()
+    {
+        var input = new QuestionInput(Input.IndicatorId, Input.Label, Input.HelpText, Input.Format.ToString(), Input.HardMin, Input.HardMax,
+            Input.PlausibleMin, Input.PlausibleMax, Input.TargetPeriods);
+        var outcome = QuestionId is { } id
+            ? await workflow.UpdateQuestionAsync(PanelId, id, input, Audit.ActorOf(User))
+            : await workflow.AddQuestionAsync(PanelId, input, Audit.ActorOf(User));
+        if (!outcome.IsOk)
+        {
+            ModelState.AddOutcome(outcome);
+            await LoadAsync();
+            return Page();
+        }
+        return RedirectToPage("Details", new { id = PanelId });
+    }
+
+    private async Task LoadAsync()
+    {
+        Indicators = await db.Indicators.AsNoTracking().OrderBy(i => i.Name).ToListAsync();
+        PanelPeriods = (await db.Panels.AsNoTracking().Where(p => p.Id == PanelId).Select(p => p.TargetPeriods).FirstOrDefaultAsync()) ?? "";
+    }
+}

@@ -1,0 +1,27 @@
+using Microsoft.AspNetCore.Mvc;
+using Microsoft.AspNetCore.Mvc.RazorPages;
+using PanelRound.Web.Application;
+
+namespace PanelRound.Web.Pages.Staff.Panels;
+
+/// <summary>Results per question for staff: distributions per round, convergence, stability, outliers by panel code, stop suggestion.</summary>
+public class ResultsModel(PanelResults results) : PageModel
+{
+    [BindProperty(SupportsGet = true)]
+    public int Id { get; set; }
+
+    public PanelResultsView View { get; private set; } = null!;
+
+    public static readonly string[] RoundColours = ["#1f77b4", "#ff7f0e", "#9467bd", "#8c564b", "#e377c2"];
+
+    public async Task<IActionResult> OnGetAsync()
+    {
+        var view = await results.BuildAsync(Id);
+        if (view is null)
+        {
+            return NotFound();
+        }
+        View = view;
+        return Page();
+    }
+}

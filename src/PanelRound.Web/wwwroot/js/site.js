@@ -1,0 +1,21 @@
+// Shows <time class="local" datetime="..."> in the reader's own time zone.
+document.querySelectorAll('time.local').forEach(function (t) {
+  var d = new Date(t.getAttribute('datetime'));
+  if (!isNaN(d)) {
+    t.textContent = d.toLocaleString(undefined, { dateStyle: 'medium', timeStyle: 'short' }) + ' (your time)';
+  }
+});
+// Asks "are you sure?" before saving values outside a question's plausible range.
+document.querySelectorAll('form[data-plausible-check]').forEach(function (form) {
+  form.addEventListener('submit', function (e) {
+    var outside = [];
+    form.querySelectorAll('input[data-plausible-min], input[data-plausible-max]').forEach(function (i) {
+      if (i.value === '') return;
+      var v = parseFloat(i.value), lo = parseFloat(i.dataset.plausibleMin), hi = parseFloat(i.dataset.plausibleMax);
+      if ((!isNaN(lo) && v < lo) || (!isNaN(hi) && v > hi)) outside.push(i.dataset.label + ': ' + i.value);
+    });
+    if (outside.length > 0 && !window.confirm('These values are outside the plausible range:\n' + outside.join('\n') + '\n\nAre you sure?')) {
+      e.preventDefault();
+    }
+  });
+});
