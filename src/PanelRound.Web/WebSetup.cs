@@ -65,14 +65,17 @@ public static class WebSetup
 
     public static WebApplication UsePanelRoundPipeline(this WebApplication app)
     {
+        // API callers get ProblemDetails for unexpected errors; people get the error page.
+        app.UseWhen(ctx => ctx.Request.Path.StartsWithSegments("/api"), api => api.UseExceptionHandler());
         if (!app.Environment.IsDevelopment())
         {
-            app.UseExceptionHandler("/Error");
+            app.UseWhen(ctx => !ctx.Request.Path.StartsWithSegments("/api"), pages => pages.UseExceptionHandler("/Error"));
         }
         app.UseStatusCodePages();
         app.UseStaticFiles();
         app.UseRouting();
         app.UseAuthentication();
+        app.UseMiddleware<CookieApiGuard>();
         app.UseAuthorization();
         app.MapOpenApi("/openapi/{documentName}.json");
         return app;

@@ -642,6 +642,9 @@ namespace PanelRound.Migrations.Postgres.Migrations
                     b.Property<int>("PanelId")
                         .HasColumnType("integer");
 
+                    b.Property<DateTime?>("RevokedAt")
+                        .HasColumnType("timestamp with time zone");
+
                     b.Property<int>("State")
                         .HasColumnType("integer");
 

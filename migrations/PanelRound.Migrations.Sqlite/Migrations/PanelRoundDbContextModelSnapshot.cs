@@ -613,6 +613,9 @@ namespace PanelRound.Migrations.Sqlite.Migrations
                     b.Property<int>("PanelId")
                         .HasColumnType("INTEGER");
 
+                    b.Property<DateTime?>("RevokedAt")
+                        .HasColumnType("TEXT");
+
                     b.Property<int>("State")
                         .HasColumnType("INTEGER");
 

@@ -49,4 +49,7 @@ public class PanelMembership
     public DateTime CreatedAt { get; set; }
 
     public DateTime? LastSeenAt { get; set; }
+
+    /// <summary>When the link was revoked: the membership's answers stop counting in rounds open then.</summary>
+    public DateTime? RevokedAt { get; set; }
 }

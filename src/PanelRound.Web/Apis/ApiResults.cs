@@ -1,5 +1,4 @@
 using Microsoft.AspNetCore.Http.HttpResults;
-using Microsoft.AspNetCore.Mvc;
 using PanelRound.Web.Application;
 
 namespace PanelRound.Web.Apis;
@@ -7,29 +6,34 @@ namespace PanelRound.Web.Apis;
 /// <summary>Maps application outcomes to typed results: ProblemDetails with field errors, 404 and 409.</summary>
 public static class ApiResults
 {
-    public static Results<Ok<TOut>, ValidationProblem, NotFound<ProblemDetails>, Conflict<ProblemDetails>> ToOk<T, TOut>(this Outcome<T> o, Func<T, TOut> map) =>
+    public static Results<Ok<TOut>, ValidationProblem, ProblemHttpResult> ToOk<T, TOut>(this Outcome<T> o, Func<T, TOut> map) =>
         o.Kind switch
         {
             OutcomeKind.Ok => TypedResults.Ok(map(o.Value!)),
             OutcomeKind.Invalid => TypedResults.ValidationProblem(o.Errors, title: "The input has errors."),
-            OutcomeKind.NotFound => TypedResults.NotFound(Problem(404, "Not found", o.Message)),
-            _ => TypedResults.Conflict(Problem(409, "Conflict", o.Message)),
+            OutcomeKind.NotFound => NotFound(o.Message ?? "Not found."),
+            _ => TypedResults.Problem(o.Message, statusCode: StatusCodes.Status409Conflict, title: "Conflict"),
         };
 
-    public static Results<Created<TOut>, ValidationProblem, NotFound<ProblemDetails>, Conflict<ProblemDetails>> ToCreated<T, TOut>(
+    public static Results<Created<TOut>, ValidationProblem, ProblemHttpResult> ToCreated<T, TOut>(
         this Outcome<T> o, Func<T, TOut> map, Func<T, string> location) =>
         o.Kind switch
         {
             OutcomeKind.Ok => TypedResults.Created(location(o.Value!), map(o.Value!)),
             OutcomeKind.Invalid => TypedResults.ValidationProblem(o.Errors, title: "The input has errors."),
-            OutcomeKind.NotFound => TypedResults.NotFound(Problem(404, "Not found", o.Message)),
-            _ => TypedResults.Conflict(Problem(409, "Conflict", o.Message)),
+            OutcomeKind.NotFound => NotFound(o.Message ?? "Not found."),
+            _ => TypedResults.Problem(o.Message, statusCode: StatusCodes.Status409Conflict, title: "Conflict"),
         };
 
-    public static ProblemDetails Problem(int status, string title, string? detail) => new() { Status = status, Title = title, Detail = detail };
+    /// <summary>A 404 as ProblemDetails (<c>application/problem+json</c>).</summary>
+    public static ProblemHttpResult NotFound(string detail) => TypedResults.Problem(detail, statusCode: StatusCodes.Status404NotFound, title: "Not found");
 
-    public static NotFound<ProblemDetails> NotFound(string detail) => TypedResults.NotFound(Problem(404, "Not found", detail));
-
-    /// <summary>The public base URL for links: the request's scheme and host.</summary>
-    public static string BaseUrl(HttpRequest request) => $"{request.Scheme}://{request.Host}{request.PathBase}";
+    /// <summary>
+    /// The public base URL for personal links: <c>App:PublicBaseUrl</c> when set (needed behind a
+    /// proxy, and so that a forged Host header never reaches an invitation), else the request's.
+    /// </summary>
+    public static string BaseUrl(HttpRequest request) =>
+        request.HttpContext.RequestServices.GetRequiredService<IConfiguration>()["App:PublicBaseUrl"] is { Length: > 0 } configured
+            ? configured.TrimEnd('/')
+            : $"{request.Scheme}://{request.Host}{request.PathBase}";
 }

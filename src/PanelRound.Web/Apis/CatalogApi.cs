@@ -1,6 +1,5 @@
 using System.Security.Claims;
 using Microsoft.AspNetCore.Http.HttpResults;
-using Microsoft.AspNetCore.Mvc;
 using Microsoft.EntityFrameworkCore;
 using PanelRound.Data;
 using PanelRound.Web.Application;
@@ -31,11 +30,11 @@ public static class CatalogApi
     public static async Task<Ok<List<IndicatorDto>>> ListIndicators(PanelRoundDbContext db) =>
         TypedResults.Ok((await db.Indicators.AsNoTracking().OrderBy(i => i.Name).ToListAsync()).Select(IndicatorDto.From).ToList());
 
-    public static async Task<Results<Created<IndicatorDto>, ValidationProblem, NotFound<ProblemDetails>, Conflict<ProblemDetails>>> CreateIndicator(
+    public static async Task<Results<Created<IndicatorDto>, ValidationProblem, ProblemHttpResult>> CreateIndicator(
         IndicatorInput input, Catalog catalog, ClaimsPrincipal user) =>
         (await catalog.CreateIndicatorAsync(input, Audit.ActorOf(user))).ToCreated(IndicatorDto.From, i => $"/api/indicators/{i.Id}");
 
-    public static async Task<Results<Ok<List<ObservationDto>>, NotFound<ProblemDetails>>> ListObservations(int id, PanelRoundDbContext db)
+    public static async Task<Results<Ok<List<ObservationDto>>, ProblemHttpResult>> ListObservations(int id, PanelRoundDbContext db)
     {
         if (!await db.Indicators.AnyAsync(i => i.Id == id))
         {
@@ -44,11 +43,11 @@ public static class CatalogApi
         return TypedResults.Ok((await Catalog.CurrentObservationsAsync(db, id)).Select(ObservationDto.From).ToList());
     }
 
-    public static async Task<Results<Ok<ObservationImportResult>, ValidationProblem, NotFound<ProblemDetails>, Conflict<ProblemDetails>>> RecordObservations(
+    public static async Task<Results<Ok<ObservationImportResult>, ValidationProblem, ProblemHttpResult>> RecordObservations(
         int id, List<ObservationInput> input, Catalog catalog, ClaimsPrincipal user) =>
         (await catalog.RecordObservationsAsync(id, input, Audit.ActorOf(user))).ToOk(r => r);
 
-    public static async Task<Results<Ok<ObservationImportResult>, ValidationProblem, NotFound<ProblemDetails>, Conflict<ProblemDetails>>> ImportObservationsCsv(
+    public static async Task<Results<Ok<ObservationImportResult>, ValidationProblem, ProblemHttpResult>> ImportObservationsCsv(
         int id, IFormFile file, Catalog catalog, ClaimsPrincipal user)
     {
         await using var stream = file.OpenReadStream();
@@ -63,7 +62,7 @@ public static class CatalogApi
     public static async Task<Ok<List<ExpertDto>>> ListExperts(PanelRoundDbContext db) =>
         TypedResults.Ok((await db.Experts.AsNoTracking().OrderBy(e => e.Name).ToListAsync()).Select(ExpertDto.From).ToList());
 
-    public static async Task<Results<Created<ExpertDto>, ValidationProblem, NotFound<ProblemDetails>, Conflict<ProblemDetails>>> CreateExpert(
+    public static async Task<Results<Created<ExpertDto>, ValidationProblem, ProblemHttpResult>> CreateExpert(
         ExpertInput input, Catalog catalog, ClaimsPrincipal user) =>
         (await catalog.CreateExpertAsync(input, Audit.ActorOf(user))).ToCreated(ExpertDto.From, e => $"/api/experts/{e.Id}");
 }

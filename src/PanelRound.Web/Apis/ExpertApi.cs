@@ -1,5 +1,4 @@
 using Microsoft.AspNetCore.Http.HttpResults;
-using Microsoft.AspNetCore.Mvc;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
 using PanelRound.Web.Application;
@@ -39,7 +38,7 @@ public static class ExpertApi
 
     private static PanelMembership Own(HttpContext ctx) => (PanelMembership)ctx.Items[typeof(PanelMembership)]!;
 
-    public static Results<Ok<MembershipView>, NotFound<ProblemDetails>> GetMembership(int membershipId, HttpContext ctx)
+    public static Results<Ok<MembershipView>, ProblemHttpResult> GetMembership(int membershipId, HttpContext ctx)
     {
         var m = Own(ctx);
         return m.Id != membershipId
@@ -47,7 +46,7 @@ public static class ExpertApi
             : TypedResults.Ok(new MembershipView(m.Id, m.PanelId, m.PanelCode, m.State.ToString()));
     }
 
-    public static async Task<Results<Ok<ExpertForm>, NotFound<ProblemDetails>>> GetForm(int panelId, HttpContext ctx, ExpertAnswers answers)
+    public static async Task<Results<Ok<ExpertForm>, ProblemHttpResult>> GetForm(int panelId, HttpContext ctx, ExpertAnswers answers)
     {
         var m = Own(ctx);
         return m.PanelId != panelId
@@ -55,7 +54,7 @@ public static class ExpertApi
             : TypedResults.Ok(await answers.GetFormAsync(m.Id));
     }
 
-    public static async Task<Results<Ok<SubmissionReceipt>, ValidationProblem, NotFound<ProblemDetails>, Conflict<ProblemDetails>>> Submit(
+    public static async Task<Results<Ok<SubmissionReceipt>, ValidationProblem, ProblemHttpResult>> Submit(
         int panelId, SubmissionInput input, HttpContext ctx, ExpertAnswers answers)
     {
         var m = Own(ctx);

@@ -1,6 +1,5 @@
 using System.Security.Claims;
 using Microsoft.AspNetCore.Http.HttpResults;
-using Microsoft.AspNetCore.Mvc;
 using Microsoft.EntityFrameworkCore;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
@@ -49,19 +48,19 @@ public static class PanelsApi
         TypedResults.Ok((await db.Panels.AsNoTracking().Include(p => p.Questions).Include(p => p.Rounds).OrderByDescending(p => p.StartsOn).ToListAsync())
             .Select(PanelDto.From).ToList());
 
-    public static async Task<Results<Ok<PanelDto>, NotFound<ProblemDetails>>> GetPanel(int id, PanelRoundDbContext db)
+    public static async Task<Results<Ok<PanelDto>, ProblemHttpResult>> GetPanel(int id, PanelRoundDbContext db)
     {
         var p = await db.Panels.AsNoTracking().Include(x => x.Questions).Include(x => x.Rounds).FirstOrDefaultAsync(x => x.Id == id);
         return p is null ? ApiResults.NotFound($"Panel {id} does not exist.") : TypedResults.Ok(PanelDto.From(p));
     }
 
-    public static async Task<Results<Ok<PanelResultsView>, NotFound<ProblemDetails>>> GetResults(int id, PanelResults results)
+    public static async Task<Results<Ok<PanelResultsView>, ProblemHttpResult>> GetResults(int id, PanelResults results)
     {
         var view = await results.BuildAsync(id);
         return view is null ? ApiResults.NotFound($"Panel {id} does not exist.") : TypedResults.Ok(view);
     }
 
-    public static async Task<Results<Ok<List<ConsensusDto>>, NotFound<ProblemDetails>>> GetConsensus(int id, PanelRoundDbContext db)
+    public static async Task<Results<Ok<List<ConsensusDto>>, ProblemHttpResult>> GetConsensus(int id, PanelRoundDbContext db)
     {
         if (!await db.Panels.AnyAsync(p => p.Id == id))
         {
@@ -71,7 +70,7 @@ public static class PanelsApi
             .Select(ConsensusDto.From).ToList());
     }
 
-    public static async Task<Results<Ok<List<FeedbackView>>, NotFound<ProblemDetails>>> GetFeedback(int id, int number, PanelRoundDbContext db)
+    public static async Task<Results<Ok<List<FeedbackView>>, ProblemHttpResult>> GetFeedback(int id, int number, PanelRoundDbContext db)
     {
         var round = await db.Rounds.AsNoTracking().FirstOrDefaultAsync(r => r.PanelId == id && r.Number == number && r.State == RoundState.Closed);
         if (round is null)
@@ -82,27 +81,27 @@ public static class PanelsApi
         return TypedResults.Ok(rows.Select(r => FeedbackView.FromJson(r.StatisticsJson)).ToList());
     }
 
-    public static async Task<Results<Created<PanelDto>, ValidationProblem, NotFound<ProblemDetails>, Conflict<ProblemDetails>>> CreatePanel(
+    public static async Task<Results<Created<PanelDto>, ValidationProblem, ProblemHttpResult>> CreatePanel(
         PanelInput input, PanelWorkflow workflow, ClaimsPrincipal user) =>
         (await workflow.CreatePanelAsync(input, Audit.ActorOf(user))).ToCreated(PanelDto.From, p => $"/api/panels/{p.Id}");
 
-    public static async Task<Results<Ok<PanelDto>, ValidationProblem, NotFound<ProblemDetails>, Conflict<ProblemDetails>>> UpdatePanel(
+    public static async Task<Results<Ok<PanelDto>, ValidationProblem, ProblemHttpResult>> UpdatePanel(
         int id, PanelInput input, PanelWorkflow workflow, ClaimsPrincipal user) =>
         (await workflow.UpdatePanelAsync(id, input, Audit.ActorOf(user))).ToOk(PanelDto.From);
 
-    public static async Task<Results<Created<QuestionDto>, ValidationProblem, NotFound<ProblemDetails>, Conflict<ProblemDetails>>> AddQuestion(
+    public static async Task<Results<Created<QuestionDto>, ValidationProblem, ProblemHttpResult>> AddQuestion(
         int id, QuestionInput input, PanelWorkflow workflow, ClaimsPrincipal user) =>
         (await workflow.AddQuestionAsync(id, input, Audit.ActorOf(user))).ToCreated(QuestionDto.From, q => $"/api/panels/{id}/questions/{q.Id}");
 
-    public static async Task<Results<Ok<QuestionDto>, ValidationProblem, NotFound<ProblemDetails>, Conflict<ProblemDetails>>> UpdateQuestion(
+    public static async Task<Results<Ok<QuestionDto>, ValidationProblem, ProblemHttpResult>> UpdateQuestion(
         int id, int questionId, QuestionInput input, PanelWorkflow workflow, ClaimsPrincipal user) =>
         (await workflow.UpdateQuestionAsync(id, questionId, input, Audit.ActorOf(user))).ToOk(QuestionDto.From);
 
-    public static async Task<Results<Ok<bool>, ValidationProblem, NotFound<ProblemDetails>, Conflict<ProblemDetails>>> RemoveQuestion(
+    public static async Task<Results<Ok<bool>, ValidationProblem, ProblemHttpResult>> RemoveQuestion(
         int id, int questionId, PanelWorkflow workflow, ClaimsPrincipal user) =>
         (await workflow.RemoveQuestionAsync(id, questionId, Audit.ActorOf(user))).ToOk(b => b);
 
-    public static async Task<Results<Ok<List<MembershipDto>>, NotFound<ProblemDetails>>> ListMembers(int id, PanelRoundDbContext db)
+    public static async Task<Results<Ok<List<MembershipDto>>, ProblemHttpResult>> ListMembers(int id, PanelRoundDbContext db)
     {
         if (!await db.Panels.AnyAsync(p => p.Id == id))
         {
@@ -112,7 +111,7 @@ public static class PanelsApi
             .Select(m => new MembershipDto(m.Id, m.ExpertId, m.PanelCode, m.State.ToString(), m.TokenIssuedAt, m.LastSeenAt)).ToListAsync());
     }
 
-    public static async Task<Results<Created<LinkDto>, ValidationProblem, NotFound<ProblemDetails>, Conflict<ProblemDetails>>> AddMember(
+    public static async Task<Results<Created<LinkDto>, ValidationProblem, ProblemHttpResult>> AddMember(
         int id, MemberInput input, PanelWorkflow workflow, ClaimsPrincipal user, HttpRequest request)
     {
         var baseUrl = ApiResults.BaseUrl(request);
@@ -120,7 +119,7 @@ public static class PanelsApi
             .ToCreated(l => new LinkDto(l.MembershipId, l.PanelCode, l.Token, baseUrl + l.Path), l => $"/api/panels/{id}/members/{l.MembershipId}");
     }
 
-    public static async Task<Results<Ok<LinkDto>, ValidationProblem, NotFound<ProblemDetails>, Conflict<ProblemDetails>>> ReissueLink(
+    public static async Task<Results<Ok<LinkDto>, ValidationProblem, ProblemHttpResult>> ReissueLink(
         int id, int membershipId, ReissueInput? input, PanelWorkflow workflow, ClaimsPrincipal user, HttpRequest request)
     {
         var baseUrl = ApiResults.BaseUrl(request);
@@ -128,19 +127,19 @@ public static class PanelsApi
             .ToOk(l => new LinkDto(l.MembershipId, l.PanelCode, l.Token, baseUrl + l.Path));
     }
 
-    public static async Task<Results<Ok<bool>, ValidationProblem, NotFound<ProblemDetails>, Conflict<ProblemDetails>>> RevokeLink(
+    public static async Task<Results<Ok<bool>, ValidationProblem, ProblemHttpResult>> RevokeLink(
         int id, int membershipId, PanelWorkflow workflow, ClaimsPrincipal user) =>
         (await workflow.RevokeLinkAsync(id, membershipId, Audit.ActorOf(user))).ToOk(b => b);
 
-    public static async Task<Results<Created<RoundDto>, ValidationProblem, NotFound<ProblemDetails>, Conflict<ProblemDetails>>> OpenRound(
+    public static async Task<Results<Created<RoundDto>, ValidationProblem, ProblemHttpResult>> OpenRound(
         int id, OpenRoundInput input, PanelWorkflow workflow, ClaimsPrincipal user) =>
         (await workflow.OpenRoundAsync(id, input.ClosesAt, Audit.ActorOf(user))).ToCreated(RoundDto.From, r => $"/api/panels/{id}/rounds/{r.Number}");
 
-    public static async Task<Results<Ok<RoundDto>, ValidationProblem, NotFound<ProblemDetails>, Conflict<ProblemDetails>>> CloseRound(
+    public static async Task<Results<Ok<RoundDto>, ValidationProblem, ProblemHttpResult>> CloseRound(
         int id, int number, PanelWorkflow workflow, ClaimsPrincipal user) =>
         (await workflow.CloseRoundAsync(id, number, Audit.ActorOf(user))).ToOk(RoundDto.From);
 
-    public static async Task<Results<Ok<TrackerDto>, NotFound<ProblemDetails>>> GetTracker(int id, int number, PanelRoundDbContext db)
+    public static async Task<Results<Ok<TrackerDto>, ProblemHttpResult>> GetTracker(int id, int number, PanelRoundDbContext db)
     {
         var round = await db.Rounds.AsNoTracking().FirstOrDefaultAsync(r => r.PanelId == id && r.Number == number);
         if (round is null)
@@ -154,11 +153,11 @@ public static class PanelsApi
             members.Where(m => !responded.Contains(m.Id)).Select(m => m.PanelCode).Order(StringComparer.Ordinal).ToList()));
     }
 
-    public static async Task<Results<Ok<int>, ValidationProblem, NotFound<ProblemDetails>, Conflict<ProblemDetails>>> SendReminders(
+    public static async Task<Results<Ok<int>, ValidationProblem, ProblemHttpResult>> SendReminders(
         int id, PanelWorkflow workflow, ClaimsPrincipal user) =>
         (await workflow.SendRemindersAsync(id, Audit.ActorOf(user))).ToOk(n => n);
 
-    public static async Task<Results<Ok<List<ConsensusDto>>, ValidationProblem, NotFound<ProblemDetails>, Conflict<ProblemDetails>>> Conclude(
+    public static async Task<Results<Ok<List<ConsensusDto>>, ValidationProblem, ProblemHttpResult>> Conclude(
         int id, PanelWorkflow workflow, ClaimsPrincipal user) =>
         (await workflow.ConcludeAsync(id, Audit.ActorOf(user))).ToOk(list => list.Select(ConsensusDto.From).ToList());
 }

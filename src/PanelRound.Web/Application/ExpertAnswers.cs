@@ -1,6 +1,7 @@
 using System.Globalization;
 using System.Text.Json;
 using Microsoft.EntityFrameworkCore;
+using PanelRound.Core.Domain;
 using PanelRound.Core.Statistics;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
@@ -23,7 +24,7 @@ public sealed record SeriesPoint(string Period, double Value);
 public sealed record RoundInfo(int Number, DateTime OpensAt, DateTime ClosesAt, bool IsOpen);
 
 /// <summary>One target period of a question, as the expert sees it.</summary>
-public sealed record ExpertPeriod(string Period, AnswerValues? Current, bool CurrentIsDraft, AnswerValues? Previous, FeedbackView? Feedback);
+public sealed record ExpertPeriod(string Period, AnswerValues? Current, bool CurrentIsDraft, AnswerValues? Previous, GroupFeedback? Feedback);
 
 public sealed record ExpertQuestion(
     int Id, string Label, string? HelpText, ResponseFormat Format, string Unit, int Decimals,
@@ -82,7 +83,7 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
                 {
                     rationales = JsonSerializer.Deserialize<List<string>>(fb.RationalesJson) ?? [];
                 }
-                periods.Add(new ExpertPeriod(period, Values(current), current?.IsDraft ?? false, Values(previous), fb is null ? null : FeedbackView.FromJson(fb.StatisticsJson)));
+                periods.Add(new ExpertPeriod(period, Values(current), current?.IsDraft ?? false, Values(previous), fb is null ? null : GroupFeedback.From(FeedbackView.FromJson(fb.StatisticsJson))));
             }
             var latest = currentRows.Where(e => e.QuestionId == q.Id).MaxBy(e => e.Id) ?? previousRows.Where(e => e.QuestionId == q.Id).MaxBy(e => e.Id);
             questions.Add(new ExpertQuestion(q.Id, q.Label, q.HelpText, q.Format, q.Indicator!.UnitLabel, q.Indicator.Decimals,
@@ -118,56 +119,64 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
     private static AnswerValues? Values(Estimate? e) => e is null ? null : new AnswerValues(e.Value, e.P10, e.P50, e.P90);
 
     /// <summary>Saves a draft or a submission for the membership's open round, all-or-nothing.</summary>
+    /// <remarks>
+    /// Implementation note: the save first updates the round row on the condition that it is
+    /// still open, in the same transaction as the new rows. Closing a round takes the same row
+    /// first (<see cref="PanelWorkflow.CloseRoundAsync"/>), so a submission either lands before the
+    /// close reads the answers or is refused with a conflict: never acknowledged and then missed.
+    /// Submissions only queue behind each other on that row; they do not fail.
+    /// </remarks>
     public async Task<Outcome<SubmissionReceipt>> SubmitAsync(int membershipId, SubmissionInput input)
     {
-        for (var attempt = 0; ; attempt++)
+        db.ChangeTracker.Clear();
+        var m = await db.Memberships.SingleAsync(x => x.Id == membershipId);
+        if (m.State == MembershipState.Revoked)
         {
-            db.ChangeTracker.Clear();
-            var m = await db.Memberships.SingleAsync(x => x.Id == membershipId);
-            var panel = await db.Panels.AsNoTracking().Include(p => p.Questions).ThenInclude(q => q.Indicator).Include(p => p.Rounds).SingleAsync(p => p.Id == m.PanelId);
-            var (_, canAnswer, reason) = Status(panel);
-            var round = panel.Rounds.FirstOrDefault(r => r.State == RoundState.Open);
-            if (!canAnswer || round is null)
-            {
-                return Outcome<SubmissionReceipt>.Conflict(reason ?? "No round is open.");
-            }
-            var previous = panel.Rounds.FirstOrDefault(r => r.Number == round.Number - 1);
-            var previousFeedback = previous is null || !panel.Settings.OutliersMustJustify
-                ? []
-                : (await db.RoundFeedback.AsNoTracking().Where(f => f.RoundId == previous.Id && !f.Withheld).ToListAsync())
-                    .ToDictionary(f => (f.QuestionId, f.Period), f => FeedbackView.FromJson(f.StatisticsJson).Headline);
-            var (errors, warnings, rows) = Validate(panel, input, previousFeedback);
-            if (errors.Any)
-            {
-                return Outcome<SubmissionReceipt>.Invalid(errors);
-            }
-            var now = Now;
-            foreach (var row in rows)
-            {
-                row.RoundId = round.Id;
-                row.MembershipId = m.Id;
-                row.CreatedAt = now;
-            }
-            db.Estimates.AddRange(rows);
-            // Touch the round so a close that read the answers before this save fails and reads again.
-            var tracked = await db.Rounds.SingleAsync(r => r.Id == round.Id);
-            if (tracked.State != RoundState.Open)
-            {
-                return Outcome<SubmissionReceipt>.Conflict($"Round {round.Number} closed; answers can no longer be changed.");
-            }
-            tracked.Version = Guid.NewGuid();
-            m.State = MembershipState.Active;
-            m.LastSeenAt = now;
-            try
-            {
-                await db.SaveChangesAsync();
-                return Outcome<SubmissionReceipt>.Ok(new SubmissionReceipt(round.Number, rows.Count, input.Draft, now, warnings));
-            }
-            catch (DbUpdateConcurrencyException) when (attempt < 5)
-            {
-                // Another submission or the close changed the round: look again.
-            }
+            return Outcome<SubmissionReceipt>.NotFound("This personal link is unknown or has been revoked.");
         }
+        var panel = await db.Panels.AsNoTracking().Include(p => p.Questions).ThenInclude(q => q.Indicator).Include(p => p.Rounds).SingleAsync(p => p.Id == m.PanelId);
+        var (_, canAnswer, reason) = Status(panel);
+        var round = panel.Rounds.FirstOrDefault(r => r.State == RoundState.Open);
+        if (!canAnswer || round is null)
+        {
+            return Outcome<SubmissionReceipt>.Conflict(reason ?? "No round is open.");
+        }
+        var previous = panel.Rounds.FirstOrDefault(r => r.Number == round.Number - 1);
+        var previousFeedback = previous is null || !panel.Settings.OutliersMustJustify
+            ? []
+            : (await db.RoundFeedback.AsNoTracking().Where(f => f.RoundId == previous.Id && !f.Withheld)
+                    .Select(f => new { f.QuestionId, f.Period, f.StatisticsJson }).ToListAsync())
+                .ToDictionary(f => (f.QuestionId, f.Period), f => FeedbackView.FromJson(f.StatisticsJson).Headline);
+        var (errors, warnings, rows) = Validate(panel, input, previousFeedback);
+        if (errors.Any)
+        {
+            return Outcome<SubmissionReceipt>.Invalid(errors);
+        }
+        var now = Now;
+        await using var tx = await db.Database.BeginTransactionAsync();
+        var stillOpen = await db.Rounds.Where(r => r.Id == round.Id && r.State == RoundState.Open && r.ClosesAt > now)
+            .ExecuteUpdateAsync(u => u.SetProperty(r => r.Version, r => r.Version));
+        var stillMember = await db.Memberships.Where(x => x.Id == m.Id && x.State != MembershipState.Revoked && x.TokenHash == m.TokenHash)
+            .ExecuteUpdateAsync(u => u.SetProperty(x => x.LastSeenAt, now)
+                .SetProperty(x => x.State, x => x.State == MembershipState.Invited ? MembershipState.Active : x.State));
+        if (stillOpen == 0)
+        {
+            return Outcome<SubmissionReceipt>.Conflict($"Round {round.Number} closed; answers can no longer be changed.");
+        }
+        if (stillMember == 0)
+        {
+            return Outcome<SubmissionReceipt>.NotFound("This personal link is unknown or has been revoked.");
+        }
+        foreach (var row in rows)
+        {
+            row.RoundId = round.Id;
+            row.MembershipId = m.Id;
+            row.CreatedAt = now;
+        }
+        db.Estimates.AddRange(rows);
+        await db.SaveChangesAsync();
+        await tx.CommitAsync();
+        return Outcome<SubmissionReceipt>.Ok(new SubmissionReceipt(round.Number, rows.Count, input.Draft, now, warnings));
     }
 
     private static (FieldErrors Errors, List<string> Warnings, List<Estimate> Rows) Validate(
@@ -179,10 +188,20 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
         var answers = input.Answers ?? [];
         var questions = panel.Questions.ToDictionary(q => q.Id);
         var seenQuestions = new HashSet<int>();
+        if (answers.Count > questions.Count)
+        {
+            errors.Add("answers", $"At most {questions.Count} answers: one per question.");
+            return (errors, warnings, rows);
+        }
         for (var i = 0; i < answers.Count; i++)
         {
             var a = answers[i];
             var at = $"answers[{i}]";
+            if (a is null)
+            {
+                errors.Add(at, "An answer is missing.");
+                continue;
+            }
             if (!questions.TryGetValue(a.QuestionId, out var q))
             {
                 errors.Add($"{at}.questionId", $"Question {a.QuestionId} is not on this panel.");
@@ -202,14 +221,24 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
             var given = a.Periods ?? [];
             var seenPeriods = new HashSet<string>(StringComparer.Ordinal);
             var needsRationale = new List<string>();
+            if (given.Count > targetPeriods.Length)
+            {
+                errors.Add($"{at}.periods", $"At most {targetPeriods.Length} periods: one per target period.");
+                continue;
+            }
             for (var j = 0; j < given.Count; j++)
             {
                 var p = given[j];
                 var pat = $"{at}.periods[{j}]";
-                var period = p.Period?.Trim() ?? "";
+                if (p is null)
+                {
+                    errors.Add(pat, "A period's answer is missing.");
+                    continue;
+                }
+                var period = Period.TryParse(p.Period, out var parsed) ? parsed.Value.ToString() : "";
                 if (!targetPeriods.Contains(period))
                 {
-                    errors.Add($"{pat}.period", $"'{p.Period}' is not a target period of this question ({q.TargetPeriods}).");
+                    errors.Add($"{pat}.period", $"'{Clip(p.Period)}' is not a target period of this question ({q.TargetPeriods}).");
                     continue;
                 }
                 if (!seenPeriods.Add(period))
@@ -246,6 +275,11 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
                             var field = check.Field is "P90" ? "p90" : check.Field is "P50" ? "p50" : "p10";
                             errors.Add($"{pat}.{field}", $"{period}: {Ordering(check.Field, a10, a50, a90)}");
                         }
+                    }
+                    else if ((p.P10 > p.P50) || (p.P50 > p.P90) || (p.P10 > p.P90))
+                    {
+                        // A draft with two of the three quantiles is still checked for their order.
+                        errors.Add($"{pat}.p10", $"{period}: P10, P50 and P90 must be in order (P10 ≤ P50 ≤ P90).");
                     }
                     headline = p.P50;
                 }
@@ -325,6 +359,8 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
             warnings.Add(string.Create(CultureInfo.InvariantCulture, $"{q.Label}, {label}: {v} {unit} is outside the plausible range {q.PlausibleMin} to {q.PlausibleMax}; are you sure?"));
         }
     }
+
+    private static string Clip(string? text) => text is null ? "" : text.Length > 20 ? text[..20] + "…" : text;
 
     private static string Ordering(string? field, double p10, double p50, double p90) => field switch
     {

@@ -23,7 +23,8 @@ public sealed record RangeStatsView(StatsView P10, StatsView P50, StatsView P90,
 /// convergence and the retained range are read from: the answers for Point questions, the P50s
 /// for Range questions.
 /// </summary>
-public sealed record FeedbackView(int QuestionId, string Period, int N, int MinimumGroupSize, bool Withheld, StatsView? Point, RangeStatsView? Range)
+public sealed record FeedbackView(int QuestionId, string Period, int N, int MinimumGroupSize, bool Withheld, StatsView? Point, RangeStatsView? Range,
+    GroupHistogram? Shape = null)
 {
     public StatsView? Headline => Point ?? Range?.P50;
 
@@ -32,6 +33,29 @@ public sealed record FeedbackView(int QuestionId, string Period, int N, int Mini
     public string ToJson() => JsonSerializer.Serialize(this, Json);
 
     public static FeedbackView FromJson(string json) => JsonSerializer.Deserialize<FeedbackView>(json, Json)!;
+}
+
+/// <summary>
+/// The histogram experts see: equal-width bins over the retained range only, with the answers
+/// the outlier rule excluded counted as below or above it, so no bin edge is an individual's
+/// extreme answer. Not made for fewer than <see cref="FeedbackCalculator.MinimumForShape"/> answers.
+/// </summary>
+public sealed record GroupHistogram(double Lower, double Upper, IReadOnlyList<int> Counts, int Below, int Above);
+
+/// <summary>Group statistics as experts see them: no minimum or maximum, no per-quantile spread of Range answers.</summary>
+public sealed record GroupStats(int N, double Median, double Q1, double Q3, double? RelativeIqr, double TrimmedMedian, double TrimmedMean,
+    double RetainedMin, double RetainedMax, GroupHistogram? Histogram);
+
+/// <summary>The round feedback an expert sees for one target period (an anonymous projection of <see cref="FeedbackView"/>).</summary>
+public sealed record GroupFeedback(string Period, int N, int MinimumGroupSize, bool Withheld, GroupStats? Stats,
+    double? AggregatedP10, double? AggregatedP50, double? AggregatedP90)
+{
+    public static GroupFeedback From(FeedbackView v) =>
+        v.Headline is not { } h || v.Withheld
+            ? new GroupFeedback(v.Period, v.N, v.MinimumGroupSize, true, null, null, null, null)
+            : new GroupFeedback(v.Period, v.N, v.MinimumGroupSize, false,
+                new GroupStats(h.N, h.Median, h.Q1, h.Q3, h.RelativeIqr, h.TrimmedMedian, h.TrimmedMean, h.RetainedMin, h.RetainedMax, v.Shape),
+                v.Range?.AggregatedP10, v.Range?.AggregatedP50, v.Range?.AggregatedP90);
 }
 
 /// <summary>One expert's latest counted answer to a question-period in a round.</summary>
@@ -58,8 +82,43 @@ public static class FeedbackCalculator
         MinimumGroupSize = Math.Max(3, s.MinimumGroupSize),
     };
 
+    /// <summary>Experts see a histogram only from this many answers, so that a bin rarely holds one person.</summary>
+    public const int MinimumForShape = 5;
+
     /// <summary>The feedback of one question-period from the answers counted in a round (in any order).</summary>
     public static FeedbackView Compute(Question question, string period, IReadOnlyList<CountedAnswer> answers, FeedbackSettings settings)
+    {
+        var view = ComputeStatistics(question, period, answers, settings);
+        return view.Headline is { } h && view.N >= MinimumForShape
+            ? view with { Shape = Shape(answers.Select(a => a.Headline).Where(double.IsFinite).ToList(), h) }
+            : view;
+    }
+
+    private static GroupHistogram Shape(IReadOnlyList<double> values, StatsView h)
+    {
+        var bins = Math.Clamp(h.Histogram.Count, 1, 10);
+        var width = (h.RetainedMax - h.RetainedMin) / bins;
+        var counts = new int[bins];
+        int below = 0, above = 0;
+        foreach (var v in values)
+        {
+            if (v < h.RetainedMin)
+            {
+                below++;
+            }
+            else if (v > h.RetainedMax)
+            {
+                above++;
+            }
+            else
+            {
+                counts[width <= 0 ? 0 : Math.Min(bins - 1, (int)((v - h.RetainedMin) / width))]++;
+            }
+        }
+        return new GroupHistogram(h.RetainedMin, h.RetainedMax, counts, below, above);
+    }
+
+    private static FeedbackView ComputeStatistics(Question question, string period, IReadOnlyList<CountedAnswer> answers, FeedbackSettings settings)
     {
         if (question.Format == ResponseFormat.Range)
         {

@@ -27,7 +27,7 @@ public sealed class MailOptions
 
     public string? SmtpPassword { get; set; }
 
-    /// <summary>STARTTLS when the server offers it (the default), or none for a local relay.</summary>
+    /// <summary>STARTTLS required (the default), or none for a relay on the same host.</summary>
     public bool UseStartTls { get; set; } = true;
 
     public string From { get; set; } = "panelround@localhost";
@@ -57,7 +57,7 @@ public sealed class Mailer(IOptions<MailOptions> options, IWebHostEnvironment en
             return;
         }
         using var smtp = new SmtpClient();
-        await smtp.ConnectAsync(o.SmtpHost, o.SmtpPort, o.UseStartTls ? SecureSocketOptions.StartTlsWhenAvailable : SecureSocketOptions.None, ct);
+        await smtp.ConnectAsync(o.SmtpHost, o.SmtpPort, o.UseStartTls ? SecureSocketOptions.StartTls : SecureSocketOptions.None, ct);
         if (!string.IsNullOrEmpty(o.SmtpUser))
         {
             await smtp.AuthenticateAsync(o.SmtpUser, o.SmtpPassword ?? "", ct);

@@ -25,8 +25,11 @@ public sealed record IssuedLink(int MembershipId, string PanelCode, string Token
 /// opening and closing rounds (closing freezes the round feedback in the same transaction), and
 /// concluding with the published consensus. Every state change is audited in the same save.
 /// </summary>
-public sealed class PanelWorkflow(PanelRoundDbContext db, TimeProvider clock, IMailer mailer, ConsensusPublisher publisher)
+public sealed class PanelWorkflow(PanelRoundDbContext db, TimeProvider clock, IMailer mailer, ConsensusPublisher publisher, ILogger<PanelWorkflow> log)
 {
+    /// <summary>The most target periods a panel may have (40 quarters, ten years).</summary>
+    public const int MaxTargetPeriods = 40;
+
     private DateTime Now => clock.GetUtcNow().UtcDateTime;
 
     private void Log(string actor, string action, string entityType, object entityId, int? panelId, object? details = null) =>
@@ -59,8 +62,14 @@ public sealed class PanelWorkflow(PanelRoundDbContext db, TimeProvider clock, IM
             return Outcome<Panel>.Conflict("The panel can be edited only while it is a draft (before round 1 opens).");
         }
         var errors = Apply(panel, input);
+        var periods = panel.TargetPeriods.Split(',');
+        foreach (var q in panel.Questions.Where(q => q.TargetPeriods.Split(',').Any(p => !periods.Contains(p))))
+        {
+            errors.Add("targetPeriods", $"Question \"{q.Label}\" asks about {q.TargetPeriods.Replace(",", ", ", StringComparison.Ordinal)}: edit it or keep those periods.");
+        }
         if (errors.Any)
         {
+            db.ChangeTracker.Clear();
             return Outcome<Panel>.Invalid(errors);
         }
         panel.Version = Guid.NewGuid();
@@ -85,6 +94,10 @@ public sealed class PanelWorkflow(PanelRoundDbContext db, TimeProvider clock, IM
         if (!Period.TryParseList(input.TargetPeriods, out var periods, out var periodError))
         {
             errors.Add("targetPeriods", periodError!);
+        }
+        else if (periods.Count > MaxTargetPeriods)
+        {
+            errors.Add("targetPeriods", $"At most {MaxTargetPeriods} target periods.");
         }
         else
         {
@@ -243,7 +256,16 @@ public sealed class PanelWorkflow(PanelRoundDbContext db, TimeProvider clock, IM
         {
             panel.Questions.Add(question);
         }
-        await db.SaveChangesAsync();
+        // The panel's version guards against a round opening while its questions change.
+        panel.Version = Guid.NewGuid();
+        try
+        {
+            await db.SaveChangesAsync();
+        }
+        catch (DbUpdateConcurrencyException)
+        {
+            return Outcome<Question>.Conflict("The panel changed meanwhile (a round may have opened); reload and try again.");
+        }
         Log(actor, questionId is null ? "question.added" : "question.edited", "Question", question.Id, panelId, new { question.Label, question.Format, question.TargetPeriods });
         await db.SaveChangesAsync();
         return Outcome<Question>.Ok(question);
@@ -303,7 +325,7 @@ public sealed class PanelWorkflow(PanelRoundDbContext db, TimeProvider clock, IM
         var link = new IssuedLink(membership.Id, membership.PanelCode, token, "/e/" + token);
         if (sendInvitation)
         {
-            await mailer.SendAsync(new MailMessageData(expert.Email, expert.Name, $"Invitation: {panel.Title}",
+            await TrySendAsync(panelId, membership.Id, new MailMessageData(expert.Email, expert.Name, $"Invitation: {panel.Title}",
                 $"Dear {expert.Name},\n\nyou are invited to the expert panel \"{panel.Title}\". Your personal link (do not forward it):\n\n{baseUrl.TrimEnd('/')}{link.Path}\n\nYour answers are anonymous to the other experts.\n"));
         }
         return Outcome<IssuedLink>.Ok(link);
@@ -317,16 +339,22 @@ public sealed class PanelWorkflow(PanelRoundDbContext db, TimeProvider clock, IM
         {
             return Outcome<IssuedLink>.NotFound($"Membership {membershipId} is not on panel {panelId}.");
         }
+        if (m.Panel!.State == PanelState.Concluded)
+        {
+            return Outcome<IssuedLink>.Conflict("The panel has concluded; its memberships are read-only.");
+        }
         var token = Secrets.NewToken();
         m.TokenHash = Secrets.Hash(token);
         m.TokenIssuedAt = Now;
         m.State = MembershipState.Invited;
+        // A re-issued link re-admits a revoked expert.
+        m.RevokedAt = null;
         Log(actor, "link.reissued", "Membership", m.Id, panelId, new { m.PanelCode });
         await db.SaveChangesAsync();
         var link = new IssuedLink(m.Id, m.PanelCode, token, "/e/" + token);
         if (sendInvitation)
         {
-            await mailer.SendAsync(new MailMessageData(m.Expert!.Email, m.Expert.Name, $"Your new link: {m.Panel!.Title}",
+            await TrySendAsync(panelId, m.Id, new MailMessageData(m.Expert!.Email, m.Expert.Name, $"Your new link: {m.Panel.Title}",
                 $"Dear {m.Expert.Name},\n\nhere is your new personal link to \"{m.Panel.Title}\"; the previous one no longer works:\n\n{baseUrl.TrimEnd('/')}{link.Path}\n"));
         }
         return Outcome<IssuedLink>.Ok(link);
@@ -334,12 +362,17 @@ public sealed class PanelWorkflow(PanelRoundDbContext db, TimeProvider clock, IM
 
     public async Task<Outcome<bool>> RevokeLinkAsync(int panelId, int membershipId, string actor)
     {
-        var m = await db.Memberships.FirstOrDefaultAsync(x => x.Id == membershipId && x.PanelId == panelId);
+        var m = await db.Memberships.Include(x => x.Panel).FirstOrDefaultAsync(x => x.Id == membershipId && x.PanelId == panelId);
         if (m is null)
         {
             return Outcome<bool>.NotFound($"Membership {membershipId} is not on panel {panelId}.");
         }
+        if (m.Panel!.State == PanelState.Concluded)
+        {
+            return Outcome<bool>.Conflict("The panel has concluded; its memberships are read-only.");
+        }
         m.State = MembershipState.Revoked;
+        m.RevokedAt = Now;
         // A new random hash, so that neither the old token nor its cookie can ever match again.
         m.TokenHash = Secrets.Hash(Secrets.NewToken());
         Log(actor, "link.revoked", "Membership", m.Id, panelId, new { m.PanelCode });
@@ -363,14 +396,37 @@ public sealed class PanelWorkflow(PanelRoundDbContext db, TimeProvider clock, IM
         var answered = await db.Estimates.Where(e => e.RoundId == round.Id && !e.IsDraft).Select(e => e.MembershipId).Distinct().ToListAsync();
         var pending = await db.Memberships.Include(m => m.Expert)
             .Where(m => m.PanelId == panelId && m.State != MembershipState.Revoked && !answered.Contains(m.Id)).ToListAsync();
+        var failed = 0;
         foreach (var m in pending)
         {
-            await mailer.SendAsync(new MailMessageData(m.Expert!.Email, m.Expert.Name, $"Reminder: round {round.Number} of {panel.Title}",
-                $"Dear {m.Expert.Name},\n\nround {round.Number} of \"{panel.Title}\" closes on {round.ClosesAt:yyyy-MM-dd HH:mm} UTC and we have not received your answers yet. Please use the personal link you were sent; ask the facilitator for a new one if you cannot find it.\n"));
+            failed += await TrySendAsync(panelId, m.Id, new MailMessageData(m.Expert!.Email, m.Expert.Name, $"Reminder: round {round.Number} of {panel.Title}",
+                $"Dear {m.Expert.Name},\n\nround {round.Number} of \"{panel.Title}\" closes on {round.ClosesAt:yyyy-MM-dd HH:mm} UTC and we have not received your answers yet. Please use the personal link you were sent; ask the facilitator for a new one if you cannot find it.\n")) ? 0 : 1;
         }
-        Log(actor, "reminders.sent", "Round", round.Id, panelId, new { round.Number, count = pending.Count });
+        Log(actor, "reminders.sent", "Round", round.Id, panelId, new { round.Number, count = pending.Count - failed, failed });
         await db.SaveChangesAsync();
-        return Outcome<int>.Ok(pending.Count);
+        return Outcome<int>.Ok(pending.Count - failed);
+    }
+
+    /// <summary>
+    /// Sends a message; a mail failure never loses the operation (the link is still shown once to
+    /// the facilitator): it is logged and audited as <c>mail.failed</c>.
+    /// </summary>
+    private async Task<bool> TrySendAsync(int panelId, int membershipId, MailMessageData message)
+    {
+        try
+        {
+            await mailer.SendAsync(message);
+            return true;
+        }
+        catch (Exception e) when (e is IOException or MailKit.ServiceNotConnectedException or MailKit.ProtocolException
+            or MailKit.Net.Smtp.SmtpCommandException or MailKit.Security.AuthenticationException or System.Net.Sockets.SocketException
+            or UnauthorizedAccessException or OperationCanceledException)
+        {
+            log.LogWarning(e, "Mail to membership {MembershipId} failed.", membershipId);
+            Log("system:mail", "mail.failed", "Membership", membershipId, panelId, new { message.Subject, error = e.Message });
+            await db.SaveChangesAsync();
+            return false;
+        }
     }
 
     /// <summary>Opens the next round with a deadline; the first opening ends the draft.</summary>
@@ -416,7 +472,15 @@ public sealed class PanelWorkflow(PanelRoundDbContext db, TimeProvider clock, IM
         panel.Rounds.Add(round);
         panel.State = PanelState.Running;
         panel.Version = Guid.NewGuid();
-        await db.SaveChangesAsync();
+        try
+        {
+            await db.SaveChangesAsync();
+        }
+        catch (DbUpdateException)
+        {
+            // Another request opened a round or changed the panel at the same moment.
+            return Outcome<Round>.Conflict("The panel changed while opening the round (another round may have opened); reload and try again.");
+        }
         Log(actor, "round.opened", "Round", round.Id, panelId, new { round.Number, round.ClosesAt });
         await db.SaveChangesAsync();
         return Outcome<Round>.Ok(round);
@@ -426,61 +490,52 @@ public sealed class PanelWorkflow(PanelRoundDbContext db, TimeProvider clock, IM
     /// Closes a round: computes the feedback of every question-period from the latest submitted
     /// answers and freezes it in the same transaction as the state change.
     /// </summary>
+    /// <remarks>
+    /// Implementation note: the transaction first flips the round to closed with a conditional
+    /// update. That takes the round row, which every submission also takes before it saves
+    /// (<see cref="ExpertAnswers.SubmitAsync"/>): answers committed before are all read below, and
+    /// later ones find the round closed. A second closer (another instance, the deadline service)
+    /// updates no row and gets a conflict.
+    /// </remarks>
     public async Task<Outcome<Round>> CloseRoundAsync(int panelId, int roundNumber, string actor)
     {
-        for (var attempt = 0; ; attempt++)
+        db.ChangeTracker.Clear();
+        var panel = await db.Panels.AsNoTracking().Include(p => p.Questions).FirstOrDefaultAsync(p => p.Id == panelId);
+        var round = panel is null ? null : await db.Rounds.AsNoTracking().FirstOrDefaultAsync(r => r.PanelId == panelId && r.Number == roundNumber);
+        if (panel is null || round is null)
         {
-            db.ChangeTracker.Clear();
-            var panel = await db.Panels.Include(p => p.Questions).FirstOrDefaultAsync(p => p.Id == panelId);
-            var round = panel is null ? null : await db.Rounds.FirstOrDefaultAsync(r => r.PanelId == panelId && r.Number == roundNumber);
-            if (panel is null || round is null)
+            return Outcome<Round>.NotFound($"Round {roundNumber} of panel {panelId} does not exist.");
+        }
+        var now = Now;
+        await using var tx = await db.Database.BeginTransactionAsync();
+        var flipped = await db.Rounds.Where(r => r.Id == round.Id && r.State == RoundState.Open)
+            .ExecuteUpdateAsync(u => u.SetProperty(r => r.State, RoundState.Closed).SetProperty(r => r.ClosedAt, now)
+                .SetProperty(r => r.ClosedBy, actor).SetProperty(r => r.Version, Guid.NewGuid()));
+        if (flipped == 0)
+        {
+            return Outcome<Round>.Conflict($"Round {roundNumber} is closed already.");
+        }
+        var answers = await CountedAnswersAsync(db, round.Id);
+        var settings = FeedbackCalculator.SettingsOf(panel.Settings);
+        foreach (var q in panel.Questions)
+        {
+            var toQuestion = answers.Where(a => a.QuestionId == q.Id).ToList();
+            foreach (var period in q.TargetPeriods.Split(','))
             {
-                return Outcome<Round>.NotFound($"Round {roundNumber} of panel {panelId} does not exist.");
-            }
-            if (round.State == RoundState.Closed)
-            {
-                return Outcome<Round>.Conflict($"Round {roundNumber} is closed already.");
-            }
-            await using var tx = await db.Database.BeginTransactionAsync();
-            var answers = await CountedAnswersAsync(db, round.Id);
-            var settings = FeedbackCalculator.SettingsOf(panel.Settings);
-            foreach (var q in panel.Questions)
-            {
-                var toQuestion = answers.Where(a => a.QuestionId == q.Id).ToList();
-                foreach (var period in q.TargetPeriods.Split(','))
+                var forPeriod = toQuestion.Where(a => a.Period == period).ToList();
+                var view = FeedbackCalculator.Compute(q, period, forPeriod, settings);
+                var rationales = view.Withheld || !panel.Settings.ShowRationales ? [] : FeedbackCalculator.Rationales(toQuestion);
+                db.RoundFeedback.Add(new RoundFeedback
                 {
-                    var forPeriod = toQuestion.Where(a => a.Period == period).ToList();
-                    var view = FeedbackCalculator.Compute(q, period, forPeriod, settings);
-                    var rationales = view.Withheld || !panel.Settings.ShowRationales ? [] : FeedbackCalculator.Rationales(toQuestion);
-                    db.RoundFeedback.Add(new RoundFeedback
-                    {
-                        RoundId = round.Id, QuestionId = q.Id, Period = period, N = view.N, Withheld = view.Withheld,
-                        StatisticsJson = view.ToJson(), RationalesJson = JsonSerializer.Serialize(rationales),
-                    });
-                }
-            }
-            round.State = RoundState.Closed;
-            round.ClosedAt = Now;
-            round.ClosedBy = actor;
-            round.Version = Guid.NewGuid();
-            Log(actor, "round.closed", "Round", round.Id, panelId, new { round.Number, answers = answers.Select(a => a.MembershipId).Distinct().Count() });
-            try
-            {
-                await db.SaveChangesAsync();
-                await tx.CommitAsync();
-                return Outcome<Round>.Ok(round);
-            }
-            catch (DbUpdateConcurrencyException) when (attempt < 5)
-            {
-                // A submission (or another close) changed the round after we read it: read again.
-                await tx.RollbackAsync();
-            }
-            catch (DbUpdateException) when (attempt < 5)
-            {
-                // Another instance froze this round's feedback first; the next pass sees it closed.
-                await tx.RollbackAsync();
+                    RoundId = round.Id, QuestionId = q.Id, Period = period, N = view.N, Withheld = view.Withheld,
+                    StatisticsJson = view.ToJson(), RationalesJson = JsonSerializer.Serialize(rationales),
+                });
             }
         }
+        Log(actor, "round.closed", "Round", round.Id, panelId, new { round.Number, answers = answers.Select(a => a.MembershipId).Distinct().Count() });
+        await db.SaveChangesAsync();
+        await tx.CommitAsync();
+        return Outcome<Round>.Ok(await db.Rounds.AsNoTracking().SingleAsync(r => r.Id == round.Id));
     }
 
     /// <summary>Concludes the panel: publishes the consensus of its last closed round; read-only from then on.</summary>
@@ -512,16 +567,26 @@ public sealed class PanelWorkflow(PanelRoundDbContext db, TimeProvider clock, IM
         panel.Version = Guid.NewGuid();
         Log(actor, "consensus.published", "Panel", panel.Id, panel.Id,
             new { round = last.Number, entries = entries.Count, weighting = panel.Settings.Weighting.ToString() });
-        await db.SaveChangesAsync();
+        try
+        {
+            await db.SaveChangesAsync();
+        }
+        catch (DbUpdateException)
+        {
+            return Outcome<IReadOnlyList<ConsensusEntry>>.Conflict("The panel changed while concluding (it may have been concluded already); reload and try again.");
+        }
         await tx.CommitAsync();
         return Outcome<IReadOnlyList<ConsensusEntry>>.Ok(entries);
     }
 
     /// <summary>The latest submitted (not draft) answer of each membership to each question-period of a round.</summary>
+    /// <remarks>A revoked membership's answers do not count in rounds that were still open when it was revoked.</remarks>
     public static async Task<IReadOnlyList<CountedAnswer>> CountedAnswersAsync(PanelRoundDbContext db, int roundId)
     {
+        var closedAt = await db.Rounds.Where(r => r.Id == roundId).Select(r => r.ClosedAt).SingleAsync();
         var rows = await db.Estimates.AsNoTracking().Where(e => e.RoundId == roundId && !e.IsDraft)
-            .Join(db.Memberships.Where(m => m.State != MembershipState.Revoked), e => e.MembershipId, m => m.Id, (e, m) => e)
+            .Join(db.Memberships.Where(m => m.State != MembershipState.Revoked || (closedAt != null && m.RevokedAt > closedAt)),
+                e => e.MembershipId, m => m.Id, (e, m) => e)
             .ToListAsync();
         return rows.GroupBy(e => (e.MembershipId, e.QuestionId, e.Period))
             .Select(g => CountedAnswer.From(g.MaxBy(e => e.Id)!)).ToList();

@@ -37,8 +37,9 @@ public sealed class RoundDeadlineService(IServiceScopeFactory scopes, Microsoft.
             {
                 await CloseDueRoundsAsync(stoppingToken);
             }
-            catch (Exception e) when (e is DbUpdateException or InvalidOperationException or TimeoutException)
+            catch (Exception e) when (e is not OperationCanceledException)
             {
+                // Implementation note: a database outage must not stop the host; the next tick tries again.
                 log.LogWarning(e, "Closing rounds at their deadline failed; will try again.");
             }
         }
@@ -61,8 +62,15 @@ public sealed class RoundDeadlineService(IServiceScopeFactory scopes, Microsoft.
         var closed = 0;
         foreach (var r in due)
         {
-            var outcome = await workflow.CloseRoundAsync(r.PanelId, r.Number, "system:deadline");
-            closed += outcome.IsOk ? 1 : 0;
+            try
+            {
+                var outcome = await workflow.CloseRoundAsync(r.PanelId, r.Number, "system:deadline");
+                closed += outcome.IsOk ? 1 : 0;
+            }
+            catch (Exception e) when (e is not OperationCanceledException)
+            {
+                log.LogWarning(e, "Closing round {Round} of panel {Panel} at its deadline failed.", r.Number, r.PanelId);
+            }
         }
         return closed;
     }

@@ -23,6 +23,9 @@ public sealed class TestApp : WebApplicationFactory<Program>
             [provider == DatabaseProvider.Postgres ? "ConnectionStrings:Postgres" : "ConnectionStrings:Sqlite"] = connectionString,
             ["Database:MigrateOnStart"] = "true",
             ["Demo:Enabled"] = "false",
+            // Tests close rounds at their deadline explicitly (RoundDeadlineService.CloseDueRoundsAsync).
+            ["Rounds:DeadlineCheckSeconds"] = "0",
+            ["Mail:OutboxFolder"] = Path.Combine(Path.GetTempPath(), "panelround-test-outbox", Guid.NewGuid().ToString("N")),
         };
         foreach (var (k, v) in extra ?? new Dictionary<string, string?>())
         {

@@ -108,30 +108,45 @@ public abstract class PanelStoryTests(IDatabaseFixture fixture) : ProviderTests(
         for (var j = 0; j < Years.Length; j++)
         {
             var expected = RoundFeedback.ForPoint(Enumerable.Range(0, 8).Select(e => PriceAnswer(e, j, 1)).ToList(), settings).GetFeedbackOrThrow();
-            var shown = questions[0]!["periods"]![j]!["feedback"]!["point"]!;
+            var shown = questions[0]!["periods"]![j]!["feedback"]!["stats"]!;
             Assert.Equal(expected.Median, (double)shown["median"]!, 9);
             Assert.Equal(expected.Q1, (double)shown["q1"]!, 9);
             Assert.Equal(expected.Q3, (double)shown["q3"]!, 9);
             Assert.Equal(expected.TrimmedMedian, (double)shown["trimmedMedian"]!, 9);
             Assert.Equal(expected.TrimmedMean, (double)shown["trimmedMean"]!, 9);
             Assert.Equal(expected.RetainedMax, (double)shown["retainedMax"]!, 9);
-            Assert.Equal(expected.ExcludedCount, (int)shown["excluded"]!);
-            Assert.Equal(expected.Histogram.Count, shown["histogram"]!.AsArray().Count);
+            var shape = shown["histogram"]!;
+            Assert.Equal(8, shape["counts"]!.AsArray().Sum(c => (int)c!) + (int)shape["below"]! + (int)shape["above"]!);
+            Assert.Equal(expected.ExcludedCount, (int)shape["below"]! + (int)shape["above"]!);
+            Assert.Equal(expected.RetainedMin, (double)shape["lower"]!, 9);
 
             var ranges = Enumerable.Range(0, 8).Select(e => RentAnswer(e, j, 1)).Select(r => new RangeAnswer(r.P10, r.P50, r.P90)).ToList();
             var expectedRange = RoundFeedback.ForRange(ranges, settings).GetFeedbackOrThrow();
-            var shownRange = questions[1]!["periods"]![j]!["feedback"]!["range"]!;
+            var shownRange = questions[1]!["periods"]![j]!["feedback"]!;
             Assert.Equal(expectedRange.AggregatedP10, (double)shownRange["aggregatedP10"]!, 9);
             Assert.Equal(expectedRange.AggregatedP50, (double)shownRange["aggregatedP50"]!, 9);
             Assert.Equal(expectedRange.AggregatedP90, (double)shownRange["aggregatedP90"]!, 9);
-            Assert.Equal(expectedRange.P50.Median, (double)shownRange["p50"]!["median"]!, 9);
+            Assert.Equal(expectedRange.P50.Median, (double)shownRange["stats"]!["median"]!, 9);
         }
         // The expert's own previous answer is shown; the group's rationales are unattributed text only.
         Assert.Equal(PriceAnswer(3, 0, 1), (double)questions[0]!["periods"]![0]!["previous"]!["value"]!);
         var rationales = questions[0]!["rationales"]!.AsArray().Select(r => (string)r!).ToList();
         Assert.Equal(8, rationales.Count);
-        Assert.DoesNotContain(form.ToJsonString(), members.Where((_, i) => i != 3).Select(m => m.Code), StringComparer.Ordinal);
-        Assert.DoesNotContain("expert0@panel.example", form.ToJsonString(), StringComparison.Ordinal);
+        var formJson = form.ToJsonString();
+        foreach (var other in members.Where((_, i) => i != 3))
+        {
+            Assert.DoesNotContain(other.Code, formJson, StringComparison.Ordinal);
+        }
+        for (var i = 0; i < 8; i++)
+        {
+            Assert.DoesNotContain($"expert{i}@panel.example", formJson, StringComparison.Ordinal);
+            Assert.DoesNotContain($"Expert {i}", formJson, StringComparison.Ordinal);
+        }
+        // No extreme individual answer is shown: no min or max, and the outlier (expert 7) is only counted above the retained range.
+        Assert.DoesNotContain("\"min\"", formJson, StringComparison.Ordinal);
+        Assert.DoesNotContain("\"max\"", formJson, StringComparison.Ordinal);
+        Assert.DoesNotContain(PriceAnswer(7, 0, 1).ToString(System.Globalization.CultureInfo.InvariantCulture), formJson, StringComparison.Ordinal);
+        Assert.Equal(1, (int)questions[0]!["periods"]![0]!["feedback"]!["stats"]!["histogram"]!["above"]!);
 
         // Round 2: six experts revise, two hold by not answering again; expert 1 revises twice.
         for (var i = 0; i < 6; i++)
@@ -271,6 +286,118 @@ public abstract class PanelStoryTests(IDatabaseFixture fixture) : ProviderTests(
         var (ok, receipt) = await client.Post($"/api/expert/panels/{s.PanelId}/estimates", json);
         Assert.Equal(HttpStatusCode.OK, ok);
         Assert.NotEmpty(receipt!["warnings"]!.AsArray()); // 9000 is outside the plausible range: "are you sure?"
+    }
+
+    [SkippableFact]
+    public async Task Api_ErrorsAreProblemDetails_AuditIsForAdministrators_OpenApiIsPublished()
+    {
+        var app = await StartAsync(new Dictionary<string, string?> { ["Mail:OutboxFolder"] = Path.Combine(Path.GetTempPath(), "panelround-outbox-" + Guid.NewGuid().ToString("N")) });
+        var staff = await app.StaffClientAsync();
+        var (status, body) = await staff.Post("/api/panels", new { brief = "x", targetPeriods = "2031-2027" });
+        Assert.Equal(HttpStatusCode.BadRequest, status);
+        var errors = body!["errors"]!.AsObject();
+        Assert.True(errors.ContainsKey("title"));
+        Assert.True(errors.ContainsKey("startsOn"));
+        Assert.True(errors.ContainsKey("targetPeriods"));
+        var missing = await staff.GetAsync("/api/panels/999999");
+        Assert.Equal(HttpStatusCode.NotFound, missing.StatusCode);
+        Assert.Equal("application/problem+json", missing.Content.Headers.ContentType?.MediaType);
+        Assert.Equal(0, await app.WithDbAsync(db => db.Panels.CountAsync()));
+
+        Assert.Equal(HttpStatusCode.Forbidden, (await staff.GetAsync("/api/audit")).StatusCode);
+        var admin = await app.StaffClientAsync(PanelRound.Data.Entities.Roles.Administrator);
+        await staff.PostOk("/api/panels", new { title = "Audited", startsOn = "2026-11-02", targetPeriods = "2027-2028" });
+        var audit = (await admin.GetOk("/api/audit?action=panel.created")).AsArray();
+        Assert.Single(audit);
+
+        var openApi = await app.Client().GetStringAsync("/openapi/v1.json");
+        Assert.Contains("/api/panels/{id}/rounds/{number}/close", openApi, StringComparison.Ordinal);
+        Assert.Contains("/api/expert/panels/{panelId}/estimates", openApi, StringComparison.Ordinal);
+    }
+
+    [SkippableFact]
+    public async Task AddMember_WithoutSmtp_InvitationWithTheLinkGoesToTheOutbox()
+    {
+        var outbox = Path.Combine(Path.GetTempPath(), "panelround-outbox-" + Guid.NewGuid().ToString("N"));
+        var app = await StartAsync(new Dictionary<string, string?> { ["Mail:OutboxFolder"] = outbox });
+        var staff = await app.StaffClientAsync();
+        var panel = await staff.PostOk("/api/panels", new { title = "Mail test", startsOn = "2026-11-02", targetPeriods = "2027" });
+        var expert = await staff.PostOk("/api/experts", new { name = "Mara Quill", email = "mara@panel.example" });
+        var link = await staff.PostOk($"/api/panels/{(int)panel["id"]!}/members", new { expertId = (int)expert["id"]! });
+        var mail = Assert.Single(Directory.GetFiles(outbox, "*.eml"));
+        var text = await File.ReadAllTextAsync(mail);
+        Assert.Contains("mara@panel.example", text, StringComparison.Ordinal);
+        Assert.Contains((string)link["token"]!, text, StringComparison.Ordinal);
+        var stored = await app.WithDbAsync(db => db.Memberships.SingleAsync());
+        Assert.Equal(64, stored.TokenHash.Length);
+        Assert.NotEqual((string)link["token"]!, stored.TokenHash);
+        Directory.Delete(outbox, recursive: true);
+    }
+
+    [SkippableFact]
+    public async Task LinkCookie_RevokedOrReissued_StopsWorking_AndCookieApiWritesNeedTheGuardHeader()
+    {
+        var s = await SetUpPanelAsync(experts: 3);
+        await s.Staff.PostOk($"/api/panels/{s.PanelId}/rounds", new { closesAt = DateTime.UtcNow.AddDays(3) });
+        var browser = s.App.Client();
+        var exchange = await browser.GetAsync($"/e/{s.Members[0].Token}");
+        Assert.Equal(HttpStatusCode.Redirect, exchange.StatusCode);
+        Assert.Equal("/expert", exchange.Headers.Location?.OriginalString);
+        Assert.Equal(HttpStatusCode.OK, (await browser.GetAsync("/expert")).StatusCode);
+        Assert.Equal(HttpStatusCode.OK, (await browser.GetAsync($"/api/expert/panels/{s.PanelId}")).StatusCode);
+
+        // A cookie-borne API write without the guard header is refused (cross-site forgery); with it, it passes.
+        var body = Submission(s.QuestionIds, 0, 1);
+        Assert.Equal(HttpStatusCode.BadRequest, (await browser.Post($"/api/expert/panels/{s.PanelId}/estimates", body)).Status);
+        browser.DefaultRequestHeaders.Add("X-Requested-With", "fetch");
+        Assert.Equal(HttpStatusCode.OK, (await browser.Post($"/api/expert/panels/{s.PanelId}/estimates", body)).Status);
+
+        await s.Staff.PostOk($"/api/panels/{s.PanelId}/members/{s.Members[0].MembershipId}/reissue", new { sendInvitation = false }, HttpStatusCode.OK);
+        var after = await browser.GetAsync("/expert");
+        Assert.Equal(HttpStatusCode.Redirect, after.StatusCode);
+        Assert.Contains("link-needed", after.Headers.Location?.OriginalString, StringComparison.Ordinal);
+        Assert.Equal(HttpStatusCode.NotFound, (await browser.GetAsync($"/api/expert/panels/{s.PanelId}")).StatusCode);
+    }
+
+    [SkippableFact]
+    public async Task Submission_NullElementsOrTooManyPeriods_AreFieldErrorsNot500()
+    {
+        var s = await SetUpPanelAsync(experts: 3);
+        await s.Staff.PostOk($"/api/panels/{s.PanelId}/rounds", new { closesAt = DateTime.UtcNow.AddDays(3) });
+        var client = s.App.Client().WithExpertToken(s.Members[0].Token);
+        var (status, body) = await client.Post($"/api/expert/panels/{s.PanelId}/estimates", new { draft = true, answers = new object?[] { null } });
+        Assert.Equal(HttpStatusCode.BadRequest, status);
+        Assert.True(body!["errors"]!.AsObject().ContainsKey("answers[0]"));
+        var tooMany = new { draft = true, answers = new[] { new { questionId = s.QuestionIds[0], periods = Enumerable.Range(0, 9).Select(i => new { period = "2027", value = 4000 }).ToArray() } } };
+        (status, body) = await client.Post($"/api/expert/panels/{s.PanelId}/estimates", tooMany);
+        Assert.Equal(HttpStatusCode.BadRequest, status);
+        Assert.True(body!["errors"]!.AsObject().ContainsKey("answers[0].periods"));
+        var (panelStatus, panelBody) = await s.Staff.Post("/api/panels", new { title = "Long", startsOn = "2026-01-01", targetPeriods = "2027-2077" });
+        Assert.Equal(HttpStatusCode.BadRequest, panelStatus);
+        Assert.True(panelBody!["errors"]!.AsObject().ContainsKey("targetPeriods"));
+        Assert.Equal(0, await s.App.WithDbAsync(db => db.Estimates.CountAsync()));
+    }
+
+    [SkippableFact]
+    public async Task Revoke_AfterTheRoundClosed_KeepsThatRoundsAnswers_ButNotTheOpenRounds()
+    {
+        var s = await SetUpPanelAsync(experts: 4);
+        await s.Staff.PostOk($"/api/panels/{s.PanelId}/rounds", new { closesAt = DateTime.UtcNow.AddDays(3) });
+        for (var i = 0; i < 4; i++)
+        {
+            await s.App.Client().WithExpertToken(s.Members[i].Token).PostOk($"/api/expert/panels/{s.PanelId}/estimates", Submission(s.QuestionIds, i, 1), HttpStatusCode.OK);
+        }
+        await s.Staff.PostOk($"/api/panels/{s.PanelId}/rounds/1/close", new { }, HttpStatusCode.OK);
+        await s.Staff.PostOk($"/api/panels/{s.PanelId}/rounds", new { closesAt = DateTime.UtcNow.AddDays(3) });
+        for (var i = 0; i < 4; i++)
+        {
+            await s.App.Client().WithExpertToken(s.Members[i].Token).PostOk($"/api/expert/panels/{s.PanelId}/estimates", Submission(s.QuestionIds, i, 2), HttpStatusCode.OK);
+        }
+        await s.Staff.PostOk($"/api/panels/{s.PanelId}/members/{s.Members[3].MembershipId}/revoke", new { }, HttpStatusCode.OK);
+        var results = await s.Staff.GetOk($"/api/panels/{s.PanelId}/results");
+        var rounds = results["questions"]![0]!["periods"]![0]!["rounds"]!.AsArray();
+        Assert.Equal(4, (int)rounds[0]!["feedback"]!["n"]!);
+        Assert.Equal(3, (int)rounds[1]!["feedback"]!["n"]!);
     }
 
     [SkippableFact]

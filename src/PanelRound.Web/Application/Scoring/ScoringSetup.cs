@@ -1,3 +1,5 @@
+using PanelRound.Web.Apis;
+
 namespace PanelRound.Web.Application.Scoring;
 
 /// <summary>Services and endpoints of outcomes, the scorecard, track-record weights, the backtest and past-panel imports.</summary>
@@ -5,9 +7,23 @@ public static class ScoringSetup
 {
     public static IServiceCollection AddPanelRoundScoring(this IServiceCollection services)
     {
-        services.AddScoped<IMemberWeights, TrackRecordWeightsService>();
+        services.AddOptions<ScoringOptions>().BindConfiguration(ScoringOptions.Section)
+            .Validate(o => o.IsValid, "Scoring:PseudoForecasts must be a finite number, 0 or more.")
+            .ValidateOnStart();
+        services.AddScoped<ScoringService>();
+        services.AddScoped<TrackRecordWeightsService>();
+        services.AddScoped<IMemberWeights>(sp => sp.GetRequiredService<TrackRecordWeightsService>());
+        services.AddScoped<ScorecardService>();
+        services.AddScoped<OutcomeRecorder>();
+        services.AddScoped<PastPanelImport>();
         return services;
     }
 
-    public static IEndpointRouteBuilder MapScoringApis(this IEndpointRouteBuilder app) => app;
+    public static IEndpointRouteBuilder MapScoringApis(this IEndpointRouteBuilder app)
+    {
+        app.MapScorecardApi();
+        app.MapOutcomesApi();
+        app.MapImportsApi();
+        return app;
+    }
 }

@@ -1,0 +1,187 @@
+using System.Globalization;
+using Microsoft.EntityFrameworkCore;
+using PanelRound.Core.Domain;
+using PanelRound.Data;
+using PanelRound.Web.Infrastructure;
+
+namespace PanelRound.Web.Application.Scoring;
+
+/// <summary>An outcome as entered: the indicator (by key), the target period, the value, a source note and the day it became known.</summary>
+public sealed record OutcomeInput(string? Indicator, string? Period, double? Value, string? Source, DateOnly? ObservedOn);
+
+/// <summary>
+/// Records outcomes: an outcome is the observation of an indicator at a period, so this goes
+/// through the catalog's observation recording (a value for a period that has one is a
+/// correction: history kept, audited as <c>observation.corrected</c>). Several indicators at
+/// once are all-or-nothing in one transaction.
+/// </summary>
+public sealed class OutcomeRecorder(PanelRoundDbContext db, Catalog catalog)
+{
+    /// <summary>Records one outcome from the form; errors are keyed by field (indicator, period, value, source).</summary>
+    public Task<Outcome<ObservationImportResult>> RecordAsync(OutcomeInput input, string actor) =>
+        RecordAsync([input], actor, (_, field) => field);
+
+    /// <summary>Reads outcome rows from CSV (columns <c>indicator</c>, <c>period</c>, <c>value</c>, optional <c>source</c>, <c>observed_on</c>) and records them all or none.</summary>
+    public async Task<Outcome<ObservationImportResult>> ImportCsvAsync(Stream csv, string actor)
+    {
+        var errors = new FieldErrors();
+        var read = ReadCsv(csv, "file", errors);
+        if (read is null)
+        {
+            return Outcome<ObservationImportResult>.Invalid(errors);
+        }
+        var (headers, rows) = read.Value;
+        foreach (var required in new[] { "indicator", "period", "value" })
+        {
+            if (!headers.Contains(required))
+            {
+                errors.Add("file", $"The header row has no '{required}' column (needed: indicator, period, value; optional: source, observed_on).");
+            }
+        }
+        if (rows.Count == 0)
+        {
+            errors.Add("file", "The file has no data rows.");
+        }
+        if (errors.Any)
+        {
+            return Outcome<ObservationImportResult>.Invalid(errors);
+        }
+        var inputs = new List<OutcomeInput>();
+        var rowNumbers = new List<int>();
+        foreach (var r in rows)
+        {
+            var value = ParseNumber(r["value"], out var bad);
+            if (bad)
+            {
+                errors.Add($"row {r.Row}", $"Row {r.Row}: value '{r["value"]}' is not a number (use a dot for decimals).");
+            }
+            var observedOn = ParseDate(r["observed_on"], out var badDate);
+            if (badDate)
+            {
+                errors.Add($"row {r.Row}", $"Row {r.Row}: observed_on '{r["observed_on"]}' is not a date (yyyy-MM-dd).");
+            }
+            inputs.Add(new OutcomeInput(r["indicator"], r["period"], value, r["source"], observedOn));
+            rowNumbers.Add(r.Row);
+        }
+        if (errors.Any)
+        {
+            return Outcome<ObservationImportResult>.Invalid(errors);
+        }
+        return await RecordAsync(inputs, actor, (i, _) => $"row {rowNumbers[i]}");
+    }
+
+    private async Task<Outcome<ObservationImportResult>> RecordAsync(IReadOnlyList<OutcomeInput> inputs, string actor, Func<int, string, string> keyOf)
+    {
+        var errors = new FieldErrors();
+        var keys = inputs.Select(i => i.Indicator?.Trim().ToLowerInvariant()).Where(k => !string.IsNullOrEmpty(k)).Distinct().ToList();
+        var indicators = await db.Indicators.AsNoTracking().Where(i => keys.Contains(i.Key)).ToDictionaryAsync(i => i.Key, i => i.Id);
+        var groups = new Dictionary<int, List<ObservationInput>>();
+        var seen = new HashSet<(int, Period)>();
+        for (var i = 0; i < inputs.Count; i++)
+        {
+            var o = inputs[i];
+            var key = o.Indicator?.Trim().ToLowerInvariant();
+            var label = inputs.Count == 1 ? "" : $"Row {keyOf(i, "").Replace("row ", "", StringComparison.Ordinal)}: ";
+            int? indicatorId = null;
+            if (string.IsNullOrEmpty(key))
+            {
+                errors.Add(keyOf(i, "indicator"), label + "Choose the indicator.");
+            }
+            else if (!indicators.TryGetValue(key, out var id))
+            {
+                errors.Add(keyOf(i, "indicator"), label + $"There is no indicator with key '{key}'.");
+            }
+            else
+            {
+                indicatorId = id;
+            }
+            if (!Period.TryParse(o.Period, out var period))
+            {
+                errors.Add(keyOf(i, "period"), label + $"'{o.Period}' is not a period: write a year such as 2024 or a quarter such as 2024Q3.");
+            }
+            else if (indicatorId is { } ind && !seen.Add((ind, period.Value)))
+            {
+                errors.Add(keyOf(i, "period"), label + $"{key} {period} appears twice.");
+            }
+            if (o.Value is not { } v || !double.IsFinite(v))
+            {
+                errors.Add(keyOf(i, "value"), label + "The value must be a number.");
+            }
+            if (o.Source?.Trim().Length > 500)
+            {
+                errors.Add(keyOf(i, "source"), label + "The source note is at most 500 characters.");
+            }
+            if (indicatorId is { } indicator && period is { } p)
+            {
+                if (!groups.TryGetValue(indicator, out var list))
+                {
+                    groups[indicator] = list = [];
+                }
+                list.Add(new ObservationInput(p.ToString(), o.Value, o.Source, o.ObservedOn));
+            }
+        }
+        if (errors.Any)
+        {
+            return Outcome<ObservationImportResult>.Invalid(errors);
+        }
+        await using var tx = await db.Database.BeginTransactionAsync();
+        int added = 0, corrected = 0, unchanged = 0;
+        foreach (var (indicatorId, list) in groups)
+        {
+            var result = await catalog.RecordObservationsAsync(indicatorId, list, actor);
+            if (!result.IsOk)
+            {
+                await tx.RollbackAsync();
+                db.ChangeTracker.Clear();
+                return result;
+            }
+            (added, corrected, unchanged) = (added + result.Value!.Added, corrected + result.Value.Corrected, unchanged + result.Value.Unchanged);
+        }
+        await tx.CommitAsync();
+        return Outcome<ObservationImportResult>.Ok(new ObservationImportResult(added, corrected, unchanged));
+    }
+
+    internal static (IReadOnlyList<string> Headers, IReadOnlyList<CsvRow> Rows)? ReadCsv(Stream csv, string key, FieldErrors errors)
+    {
+        try
+        {
+            return CsvFiles.Read(csv);
+        }
+        catch (Exception e) when (e is FormatException or InvalidDataException or InvalidOperationException or ArgumentException
+            || e.GetType().Namespace?.StartsWith("CsvHelper", StringComparison.Ordinal) == true)
+        {
+            errors.Add(key, "The file is not readable as CSV: " + e.Message);
+            return null;
+        }
+    }
+
+    internal static double? ParseNumber(string? text, out bool bad)
+    {
+        bad = false;
+        if (text is null)
+        {
+            return null;
+        }
+        if (double.TryParse(text, NumberStyles.Float, CultureInfo.InvariantCulture, out var d) && double.IsFinite(d))
+        {
+            return d;
+        }
+        bad = true;
+        return null;
+    }
+
+    internal static DateOnly? ParseDate(string? text, out bool bad)
+    {
+        bad = false;
+        if (text is null)
+        {
+            return null;
+        }
+        if (DateOnly.TryParseExact(text, "yyyy-MM-dd", CultureInfo.InvariantCulture, DateTimeStyles.None, out var date))
+        {
+            return date;
+        }
+        bad = true;
+        return null;
+    }
+}

@@ -1,0 +1,43 @@
+using System.Diagnostics;
+using Microsoft.AspNetCore.Authorization;
+using Microsoft.AspNetCore.Mvc;
+using Microsoft.AspNetCore.Mvc.RazorPages;
+using PanelRound.Web.Application.Scoring;
+using PanelRound.Web.Infrastructure;
+
+namespace PanelRound.Web.Pages.Staff.Imports;
+
+[Authorize(Policy = AuthSetup.FacilitatorPolicy)]
+public class IndexModel(PastPanelImport import) : PageModel
+{
+    public IReadOnlyList<KeyValuePair<string, string[]>> Errors { get; private set; } = [];
+
+    public PastPanelImportResult? Result { get; private set; }
+
+    public double Seconds { get; private set; }
+
+    public void OnGet()
+    {
+    }
+
+    public async Task<IActionResult> OnPostAsync(IFormFile? forecasts, IFormFile? observations)
+    {
+        if (forecasts is null || forecasts.Length == 0)
+        {
+            Errors = [new("forecasts", ["Choose the forecasts file."])];
+            return Page();
+        }
+        var watch = Stopwatch.StartNew();
+        await using var f = forecasts.OpenReadStream();
+        await using var o = observations is { Length: > 0 } ? observations.OpenReadStream() : null;
+        var outcome = await import.ImportAsync(f, o, Audit.ActorOf(User));
+        Seconds = watch.Elapsed.TotalSeconds;
+        if (!outcome.IsOk)
+        {
+            Errors = [.. outcome.Errors];
+            return Page();
+        }
+        Result = outcome.Value;
+        return Page();
+    }
+}

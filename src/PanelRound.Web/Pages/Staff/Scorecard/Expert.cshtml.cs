@@ -1,0 +1,24 @@
+using Microsoft.AspNetCore.Authorization;
+using Microsoft.AspNetCore.Mvc;
+using Microsoft.AspNetCore.Mvc.RazorPages;
+using PanelRound.Web.Application.Scoring;
+using PanelRound.Web.Infrastructure;
+
+namespace PanelRound.Web.Pages.Staff.Scorecard;
+
+[Authorize(Policy = AuthSetup.ReviewerPolicy)]
+public class ExpertModel(ScorecardService scorecard) : PageModel
+{
+    public ExpertScorecardView View { get; private set; } = null!;
+
+    public async Task<IActionResult> OnGetAsync(int id)
+    {
+        var view = await scorecard.ExpertAsync(id);
+        if (view is null)
+        {
+            return NotFound();
+        }
+        View = view;
+        return Page();
+    }
+}

@@ -1,0 +1,23 @@
+using Microsoft.AspNetCore.Authorization;
+using Microsoft.AspNetCore.Mvc;
+using Microsoft.AspNetCore.Mvc.RazorPages;
+using PanelRound.Web.Application.Scoring;
+using PanelRound.Web.Infrastructure;
+
+namespace PanelRound.Web.Pages.Staff.Scorecard;
+
+[Authorize(Policy = AuthSetup.ReviewerPolicy)]
+public class IndexModel(ScorecardService scorecard) : PageModel
+{
+    [BindProperty(SupportsGet = true)]
+    public string? Indicator { get; set; }
+
+    [BindProperty(SupportsGet = true)]
+    public string? Period { get; set; }
+
+    public ScorecardView View { get; private set; } = null!;
+
+    public async Task OnGetAsync() =>
+        View = await scorecard.ScorecardAsync(new ScorecardFilter(
+            string.IsNullOrWhiteSpace(Indicator) ? null : Indicator.Trim(), string.IsNullOrWhiteSpace(Period) ? null : Period.Trim()));
+}
