@@ -1,16 +1,20 @@
 using Microsoft.AspNetCore.Mvc;
 using Microsoft.AspNetCore.Mvc.RazorPages;
 using PanelRound.Web.Application;
+using PanelRound.Web.Application.Scoring;
 
 namespace PanelRound.Web.Pages.Staff.Panels;
 
 /// <summary>Results per question for staff: distributions per round, convergence, stability, outliers by panel code, stop suggestion.</summary>
-public class ResultsModel(PanelResults results) : PageModel
+public class ResultsModel(PanelResults results, ScorecardService scorecard) : PageModel
 {
     [BindProperty(SupportsGet = true)]
     public int Id { get; set; }
 
     public PanelResultsView View { get; private set; } = null!;
+
+    /// <summary>Equal-weight and track-record consensus of the last closed round, side by side; null before any round closed.</summary>
+    public ConsensusComparison? Comparison { get; private set; }
 
     public static readonly string[] RoundColours = ["#1f77b4", "#ff7f0e", "#9467bd", "#8c564b", "#e377c2"];
 
@@ -22,6 +26,7 @@ public class ResultsModel(PanelResults results) : PageModel
             return NotFound();
         }
         View = view;
+        Comparison = await scorecard.CompareAsync(Id);
         return Page();
     }
 }
