@@ -37,11 +37,17 @@ public sealed class PanelResults(PanelRoundDbContext db)
         var settings = FeedbackCalculator.SettingsOf(panel.Settings);
         var codes = await db.Memberships.AsNoTracking().Where(m => m.PanelId == panelId).ToDictionaryAsync(m => m.Id, m => m.PanelCode);
         var rounds = panel.Rounds.OrderBy(r => r.Number).ToList();
-        var answersByRound = new Dictionary<int, IReadOnlyList<CountedAnswer>>();
+        // Each round's answers grouped once by question-period, so the loops below do no scans.
+        var answersByRound = new Dictionary<int, ILookup<(int, string), CountedAnswer>>();
         foreach (var r in rounds)
         {
-            answersByRound[r.Number] = await PanelWorkflow.CountedAnswersAsync(db, r.Id);
+            answersByRound[r.Number] = (await PanelWorkflow.CountedAnswersAsync(db, r.Id)).ToLookup(a => (a.QuestionId, a.Period));
         }
+        var indicatorIds = panel.Questions.Select(q => q.IndicatorId).Distinct().ToList();
+        var observations = (await db.Observations.AsNoTracking()
+                .Where(o => indicatorIds.Contains(o.IndicatorId) && o.SupersededAt == null).OrderBy(o => o.PeriodSortKey).ToListAsync())
+            .Where(o => Core.Domain.Period.Parse(o.Period).EndDate < panel.StartsOn)
+            .ToLookup(o => o.IndicatorId);
         var frozen = (await db.RoundFeedback.AsNoTracking().Where(f => rounds.Select(r => r.Id).Contains(f.RoundId)).ToListAsync())
             .ToDictionary(f => (f.RoundId, f.QuestionId, f.Period));
         var consensus = await db.Consensus.AsNoTracking().Where(c => c.PanelId == panelId).ToListAsync();
@@ -56,7 +62,7 @@ public sealed class PanelResults(PanelRoundDbContext db)
                 RoundResult? previous = null;
                 foreach (var r in rounds)
                 {
-                    var answers = answersByRound[r.Number].Where(a => a.QuestionId == q.Id && a.Period == period).ToList();
+                    var answers = answersByRound[r.Number][(q.Id, period)].ToList();
                     var isFrozen = frozen.TryGetValue((r.Id, q.Id, period), out var f);
                     var view = isFrozen ? FeedbackView.FromJson(f!.StatisticsJson) : FeedbackCalculator.Compute(q, period, answers, settings);
                     var convergence = Convergence.Assess(view.Headline?.RelativeIqr, previous?.Feedback.Headline?.RelativeIqr, view.N,
@@ -64,7 +70,7 @@ public sealed class PanelResults(PanelRoundDbContext db)
                     StabilityAssessment? stability = null;
                     if (r.Number > 1)
                     {
-                        var before = answersByRound[r.Number - 1].Where(a => a.QuestionId == q.Id && a.Period == period).ToDictionary(a => a.MembershipId);
+                        var before = answersByRound[r.Number - 1][(q.Id, period)].ToDictionary(a => a.MembershipId);
                         var pairs = answers.Where(a => before.ContainsKey(a.MembershipId))
                             .Select(a => new PairedAnswer(before[a.MembershipId].Headline, a.Headline)).ToList();
                         stability = Stability.Assess(pairs, panel.Settings.StabilityThreshold);
@@ -83,7 +89,7 @@ public sealed class PanelResults(PanelRoundDbContext db)
                 .Select(p => frozen.GetValueOrDefault((latestFrozen.Id, q.Id, p)))
                 .Where(f => f is not null && !f.Withheld)
                 .SelectMany(f => JsonSerializer.Deserialize<List<string>>(f!.RationalesJson) ?? []).Distinct().Order(StringComparer.Ordinal).ToList();
-            var reference = (await Catalog.CurrentObservationsAsync(db, q.IndicatorId, panel.StartsOn)).Select(o => new SeriesPoint(o.Period, o.Value)).ToList();
+            var reference = observations[q.IndicatorId].Select(o => new SeriesPoint(o.Period, o.Value)).ToList();
             questions.Add(new QuestionResult(q.Id, q.Label, q.Format, q.Indicator!.UnitLabel, q.Indicator.Decimals, reference, periods, reason, text, rationales));
         }
         return new PanelResultsView(panel.Id, panel.Title, panel.State, panel.Settings, questions);
