@@ -4,6 +4,7 @@ using Microsoft.EntityFrameworkCore;
 using PanelRound.Core.Domain;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
+using PanelRound.Web.Application.Scoring;
 using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Application;
@@ -55,6 +56,10 @@ public sealed partial class Catalog(PanelRoundDbContext db, TimeProvider clock)
     /// Records observations all-or-nothing. A value for a period that has one already is a
     /// correction: the old row is marked superseded (history kept) and the change is audited.
     /// </summary>
+    /// <remarks>
+    /// Values are finite with |v| ≤ 10¹² (<see cref="Figures.MaxMagnitude"/>); the day a value became
+    /// known (<c>observedOn</c>), when given, lies between the period's end and today.
+    /// </remarks>
     public async Task<Outcome<ObservationImportResult>> RecordObservationsAsync(int indicatorId, IReadOnlyList<ObservationInput> inputs, string actor, string fieldPrefix = "observations")
     {
         var indicator = await db.Indicators.FirstOrDefaultAsync(i => i.Id == indicatorId);
@@ -85,8 +90,16 @@ public sealed partial class Catalog(PanelRoundDbContext db, TimeProvider clock)
             {
                 errors.Add($"{at}.value", "Value must be a number.");
             }
+            else if (!Figures.InBounds(v))
+            {
+                errors.Add($"{at}.value", "Value " + Figures.OutOfBoundsMessage);
+            }
+            if (ObservedOnError(period, o.ObservedOn, Today) is { } dateError)
+            {
+                errors.Add($"{at}.observedOn", dateError);
+            }
             var source = errors.Optional($"{at}.source", o.Source, 500, "Source");
-            if (period is { } p && o.Value is { } value && double.IsFinite(value))
+            if (period is { } p && o.Value is { } value && Figures.InBounds(value))
             {
                 parsed.Add((p, value, source, o.ObservedOn));
             }
@@ -237,6 +250,25 @@ public sealed partial class Catalog(PanelRoundDbContext db, TimeProvider clock)
     }
 
     private DateTime Now => clock.GetUtcNow().UtcDateTime;
+
+    private DateOnly Today => DateOnly.FromDateTime(Now);
+
+    /// <summary>
+    /// Why a day cannot be the day a period's value became known, or null when it can (or is not
+    /// given): a value is known at the earliest on the period's last day, and at the latest today.
+    /// </summary>
+    public static string? ObservedOnError(Period? period, DateOnly? observedOn, DateOnly today)
+    {
+        if (observedOn is not { } on)
+        {
+            return null;
+        }
+        if (period is { } p && on < p.EndDate)
+        {
+            return $"The value of {p} cannot be known on {on:yyyy-MM-dd}, before the period ends ({p.EndDate:yyyy-MM-dd}).";
+        }
+        return on > today ? $"The day it became known ({on:yyyy-MM-dd}) is after today ({today:yyyy-MM-dd})." : null;
+    }
 
     [GeneratedRegex("^[a-z0-9][a-z0-9-]*$")]
     private static partial Regex KeyPattern();

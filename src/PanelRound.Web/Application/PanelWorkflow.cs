@@ -580,17 +580,25 @@ public sealed class PanelWorkflow(PanelRoundDbContext db, TimeProvider clock, IM
     }
 
     /// <summary>The latest submitted (not draft) answer of each membership to each question-period of a round.</summary>
-    /// <remarks>A revoked membership's answers do not count in rounds that were still open when it was revoked.</remarks>
+    /// <remarks>A revoked membership's answers do not count in rounds that were still open when it was revoked (<see cref="AnswersCount"/>).</remarks>
     public static async Task<IReadOnlyList<CountedAnswer>> CountedAnswersAsync(PanelRoundDbContext db, int roundId)
     {
         var closedAt = await db.Rounds.Where(r => r.Id == roundId).Select(r => r.ClosedAt).SingleAsync();
         var rows = await db.Estimates.AsNoTracking().Where(e => e.RoundId == roundId && !e.IsDraft)
-            .Join(db.Memberships.Where(m => m.State != MembershipState.Revoked || (closedAt != null && m.RevokedAt > closedAt)),
-                e => e.MembershipId, m => m.Id, (e, m) => e)
+            .Join(db.Memberships, e => e.MembershipId, m => m.Id, (e, m) => new { Estimate = e, m.State, m.RevokedAt })
             .ToListAsync();
-        return rows.GroupBy(e => (e.MembershipId, e.QuestionId, e.Period))
-            .Select(g => CountedAnswer.From(g.MaxBy(e => e.Id)!)).ToList();
+        return rows.Where(r => AnswersCount(r.State, r.RevokedAt, closedAt))
+            .GroupBy(r => (r.Estimate.MembershipId, r.Estimate.QuestionId, r.Estimate.Period))
+            .Select(g => CountedAnswer.From(g.MaxBy(r => r.Estimate.Id)!.Estimate)).ToList();
     }
+
+    /// <summary>
+    /// Whether a membership's answers count in a round: the membership is not revoked, or it was
+    /// revoked after the round closed (a later revocation does not rewrite a closed round). The one
+    /// rule for the round feedback, the consensus and the scorecard.
+    /// </summary>
+    public static bool AnswersCount(MembershipState state, DateTime? revokedAt, DateTime? roundClosedAt) =>
+        state != MembershipState.Revoked || (roundClosedAt is { } closed && revokedAt > closed);
 
     private async Task<string> NewPanelCodeAsync()
     {

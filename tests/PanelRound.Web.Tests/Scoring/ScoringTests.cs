@@ -247,6 +247,10 @@ public abstract class ScoringTests(IDatabaseFixture fixture, ITestOutputHelper o
             Assert.Equal(f.MeanError, (double)shown[key]["meanError"]!, 9);
             Assert.Equal(f.ScaledMae, (double)shown[key]["scaledMae"]!, 9);
             Assert.Equal(f.Coverage!.Value, (double)shown[key]["coverage"]!, 9);
+            // Every figure has its n: the scaled interval score and the range weight rest on the range items (all scaled).
+            Assert.Equal(f.NRange, (int)shown[key]["nRangeScaled"]!);
+            Assert.Equal(f.NRange, (int)shown[key]["rangeWeightN"]!);
+            Assert.Equal(f.N, (int)shown[key]["weightN"]!);
         }
         // The consensus is scored like an expert: one item per question-period (5 panels x 2 indicators x 2 periods).
         Assert.Equal(20, (int)scorecard["consensus"]!["n"]!);
@@ -411,7 +415,8 @@ public abstract class ScoringTests(IDatabaseFixture fixture, ITestOutputHelper o
         var pool = own.Values.SelectMany(x => x).Average();
         var shrunk = own.ToDictionary(kv => kv.Key, kv => (kv.Value.Sum() + 5 * pool) / (kv.Value.Count + 5));
         var sum = shrunk.Values.Sum(e => 1 / e);
-        var members = compare["weights"]!["members"]!.AsArray();
+        var members = compare["weights"]!["point"]!["members"]!.AsArray();
+        Assert.Null(compare["weights"]!["range"]);
         var keyOfExpert = roster.ToDictionary(kv => kv.Value, kv => kv.Key);
         var keyOfCode = (await staff.GetOk($"/api/panels/{panelId}/members")).AsArray().ToDictionary(m => (string)m!["panelCode"]!, m => keyOfExpert[(int)m!["expertId"]!]);
         Assert.Equal(5, members.Count);
@@ -428,7 +433,7 @@ public abstract class ScoringTests(IDatabaseFixture fixture, ITestOutputHelper o
         async Task<IReadOnlyDictionary<int, double>> WeightsAsync(DateTime asOf)
         {
             using var scope = app.Services.CreateScope();
-            return (await scope.ServiceProvider.GetRequiredService<IMemberWeights>().ForPanelAsync(panelId, asOf))!;
+            return (await scope.ServiceProvider.GetRequiredService<IMemberWeights>().ForPanelAsync(panelId, asOf))!.Point!;
         }
         var atClose = await WeightsAsync(concludedAt);
         await staff.PostOk("/api/outcomes", new { indicator = "idx-a", period = "2021", value = 160.0, source = "late bulletin" }, HttpStatusCode.OK);
@@ -440,6 +445,597 @@ public abstract class ScoringTests(IDatabaseFixture fixture, ITestOutputHelper o
         var leaked = await WeightsAsync(concludedAt.AddDays(1));
         Assert.Contains(leaked, kv => Math.Abs(kv.Value - atClose[kv.Key]) > 1e-6);
     }
+    // ---------- Shared set-up of live panels (through the API, as a facilitator and the experts would) ----------
+
+    private static async Task<int> IndicatorWithSeriesAsync(HttpClient staff, string key, IReadOnlyDictionary<int, double> series)
+    {
+        var id = (int)(await staff.PostOk("/api/indicators", new { key, name = key, unitLabel = "points", decimals = 2 }))["id"]!;
+        var rows = series.Select(kv => new { period = kv.Key.ToString(Inv), value = kv.Value, source = "test series", observedOn = $"{kv.Key + 1}-02-15" }).ToArray();
+        await staff.PostOk($"/api/indicators/{id}/observations", rows, HttpStatusCode.OK);
+        return id;
+    }
+
+    private static async Task<Dictionary<string, int>> ExpertsAsync(HttpClient staff, params (string Name, string Email, string? ExternalKey)[] experts)
+    {
+        var ids = new Dictionary<string, int>(StringComparer.Ordinal);
+        foreach (var (name, email, externalKey) in experts)
+        {
+            ids[name] = (int)(await staff.PostOk("/api/experts", new { name, email, externalKey }))["id"]!;
+        }
+        return ids;
+    }
+
+    /// <summary>A panel with one question per (indicator, format), every expert a member; round 1 open.</summary>
+    private static async Task<(int PanelId, List<int> Questions, Dictionary<string, string> Tokens, Dictionary<string, int> Memberships)> LivePanelAsync(
+        HttpClient staff, string startsOn, string period, (int IndicatorId, string Format)[] questions, IReadOnlyDictionary<string, int> experts, string weighting = "Equal")
+    {
+        var panelId = (int)(await staff.PostOk("/api/panels", new { title = "Live " + Guid.NewGuid().ToString("N")[..6], startsOn, targetPeriods = period, settings = new { weighting } }))["id"]!;
+        var questionIds = new List<int>();
+        foreach (var (indicatorId, format) in questions)
+        {
+            questionIds.Add((int)(await staff.PostOk($"/api/panels/{panelId}/questions", new { indicatorId, label = $"Q{questionIds.Count + 1}", format }))["id"]!);
+        }
+        var tokens = new Dictionary<string, string>(StringComparer.Ordinal);
+        var memberships = new Dictionary<string, int>(StringComparer.Ordinal);
+        foreach (var (name, expertId) in experts)
+        {
+            var link = await staff.PostOk($"/api/panels/{panelId}/members", new { expertId, sendInvitation = false });
+            tokens[name] = (string)link["token"]!;
+            memberships[name] = (int)link["membershipId"]!;
+        }
+        await staff.PostOk($"/api/panels/{panelId}/rounds", new { closesAt = DateTime.UtcNow.AddDays(3) });
+        return (panelId, questionIds, tokens, memberships);
+    }
+
+    private static async Task SubmitAsync(TestApp app, string token, int panelId, string period, params (int QuestionId, double? Value, double? P10, double? P50, double? P90)[] answers)
+    {
+        await app.Client().WithExpertToken(token).PostOk($"/api/expert/panels/{panelId}/estimates", new
+        {
+            draft = false,
+            answers = answers.Select(a => new
+            {
+                questionId = a.QuestionId, confidence = 3, rationale = "view",
+                periods = new[] { new { period, value = a.Value, p10 = a.P10, p50 = a.P50, p90 = a.P90 } },
+            }).ToArray(),
+        }, HttpStatusCode.OK);
+    }
+
+    /// <summary>The weighted median as documented for the consensus: each sorted value at the midpoint of its weight mass, positions rescaled to [0, 1], linear interpolation at 0.5 (no ties).</summary>
+    private static double WeightedMedian(IReadOnlyList<double> values, IReadOnlyList<double> weights)
+    {
+        var sorted = values.Select((v, i) => (V: v, W: weights[i])).OrderBy(p => p.V).ToArray();
+        var total = sorted.Sum(p => p.W);
+        var w = sorted.Select(p => p.W / total).ToArray();
+        var m = w.Length;
+        var u = new double[m];
+        var cumulative = 0.0;
+        for (var k = 0; k < m; k++)
+        {
+            cumulative += w[k];
+            u[k] = (cumulative - (w[k] / 2) - (w[0] / 2)) / (1 - (w[0] / 2) - (w[m - 1] / 2));
+        }
+        for (var k = 0; k < m - 1; k++)
+        {
+            if (u[k] <= 0.5 && 0.5 <= u[k + 1])
+            {
+                return sorted[k].V + ((0.5 - u[k]) / (u[k + 1] - u[k]) * (sorted[k + 1].V - sorted[k].V));
+            }
+        }
+        throw new InvalidOperationException("No bracket for the median.");
+    }
+
+    private static double Median(IEnumerable<double> values)
+    {
+        var x = values.Order().ToArray();
+        return x.Length % 2 == 1 ? x[x.Length / 2] : (x[(x.Length / 2) - 1] + x[x.Length / 2]) / 2;
+    }
+
+    /// <summary>Shrinkage weights (k = 5) from per-expert lists of scaled errors: e~ = (Σe + k·pool) / (n + k), w ∝ 1 / e~.</summary>
+    private static Dictionary<string, double> ShrunkWeights(IReadOnlyDictionary<string, List<double>> errors)
+    {
+        var pool = errors.Values.SelectMany(x => x).Average();
+        var inverse = errors.ToDictionary(kv => kv.Key, kv => 1 / ((kv.Value.Sum() + (5 * pool)) / (kv.Value.Count + 5)));
+        var sum = inverse.Values.Sum();
+        return inverse.ToDictionary(kv => kv.Key, kv => kv.Value / sum);
+    }
+
+    private static readonly string[] FiveExperts = ["A", "B", "C", "D", "E"];
+
+    private static Dictionary<int, double> SeriesA() => Enumerable.Range(2010, 12).ToDictionary(y => y, y => 100.0 + (3 * (y - 2010)) + (y % 2 == 0 ? 1 : -1));
+
+    private static Dictionary<int, double> SeriesB() => Enumerable.Range(2010, 10).ToDictionary(y => y, y => 50.0 + (2 * (y - 2010)) + (y % 3 == 0 ? 1.5 : -0.5));
+
+    // ---------- Revoked links count as in the consensus ----------
+
+    [SkippableFact]
+    public async Task RevokedAfterTheClose_IsScoredLikeTheConsensusCountsIt_RevokedWhileOpen_IsNot()
+    {
+        var app = await StartAsync();
+        var staff = await app.StaffClientAsync();
+        var reviewer = await app.StaffClientAsync(Roles.Reviewer);
+        var series = SeriesA();
+        var indicatorId = await IndicatorWithSeriesAsync(staff, "idx-a", series);
+        var experts = await ExpertsAsync(staff, ("A", "a@example.org", "A"), ("B", "b@example.org", "B"), ("C", "c@example.org", "C"), ("D", "d@example.org", "D"));
+        var (panelId, questions, tokens, memberships) = await LivePanelAsync(staff, "2020-01-01", "2021", [(indicatorId, "Point")], experts);
+        var answers = new Dictionary<string, double> { ["A"] = 131, ["B"] = 127, ["C"] = 140, ["D"] = 90 };
+        foreach (var (key, value) in answers)
+        {
+            await SubmitAsync(app, tokens[key], panelId, "2021", (questions[0], value, null, null, null));
+        }
+        await staff.PostOk($"/api/panels/{panelId}/members/{memberships["D"]}/revoke", new { }, HttpStatusCode.OK);
+        await staff.PostOk($"/api/panels/{panelId}/rounds/1/close", new { }, HttpStatusCode.OK);
+        await staff.PostOk($"/api/panels/{panelId}/members/{memberships["C"]}/revoke", new { }, HttpStatusCode.OK);
+        var published = (await staff.PostOk($"/api/panels/{panelId}/conclude", new { }, HttpStatusCode.OK)).AsArray().Single()!;
+
+        // The consensus counts A, B and C (C was revoked after the round closed), not D.
+        Assert.Equal(3, (int)published["n"]!);
+        Assert.Equal(Median([131, 127, 140]), (double)published["value"]!, 9);
+
+        // The scorecard counts the same answers.
+        var scorecard = ExpertsOf(await reviewer.GetOk("/api/scorecard"));
+        Assert.Equal(["A", "B", "C"], scorecard.Where(e => (int)e.Value["n"]! > 0).Select(e => e.Key).Order());
+        foreach (var key in new[] { "A", "B", "C" })
+        {
+            Assert.Equal(Math.Abs(answers[key] - series[2021]), (double)scorecard[key]["mae"]!, 9);
+        }
+    }
+
+    // ---------- Compare with nobody on record ----------
+
+    [SkippableFact]
+    public async Task Compare_OnAFreshDatabaseWithOneClosedRound_IsEqualWeightsWithNullErrors_NotAServerError()
+    {
+        var app = await StartAsync();
+        var staff = await app.StaffClientAsync();
+        var indicatorId = await IndicatorWithSeriesAsync(staff, "idx-a", SeriesA());
+        var experts = await ExpertsAsync(staff, ("A", "a@example.org", null), ("B", "b@example.org", null), ("C", "c@example.org", null));
+        var next = (DateTime.UtcNow.Year + 1).ToString(Inv);
+        var (panelId, questions, tokens, _) = await LivePanelAsync(staff, DateTime.UtcNow.ToString("yyyy-MM-dd", Inv), next, [(indicatorId, "Point")], experts, "TrackRecord");
+        foreach (var (key, value) in new Dictionary<string, double> { ["A"] = 140, ["B"] = 150, ["C"] = 146 })
+        {
+            await SubmitAsync(app, tokens[key], panelId, next, (questions[0], value, null, null, null));
+        }
+        await staff.PostOk($"/api/panels/{panelId}/rounds/1/close", new { }, HttpStatusCode.OK);
+
+        var compare = await staff.GetOk($"/api/panels/{panelId}/consensus/compare");
+        var point = compare["weights"]!["point"]!;
+        Assert.Null(point["poolMeanError"]);
+        Assert.Equal(0, (int)compare["weights"]!["historyItems"]!);
+        Assert.All(point["members"]!.AsArray(), m =>
+        {
+            Assert.Null(m!["shrunkError"]);
+            Assert.Null(m["pooledScaledError"]);
+            Assert.Equal(1.0 / 3, (double)m["weight"]!, 12);
+        });
+        var target = compare["targets"]!.AsArray().Single()!;
+        Assert.Equal(146, (double)target["equal"]!["value"]!, 12);
+        Assert.Equal(146, (double)target["trackRecord"]!["value"]!, 12);
+        Assert.Equal(0, (double)target["difference"]!, 12);
+    }
+
+    // ---------- Validation of outcomes and observations ----------
+
+    [SkippableFact]
+    public async Task ObservedOnAndMagnitude_AreCheckedWhereverAccepted_AndABadInputSavesNothing()
+    {
+        var app = await StartAsync();
+        var staff = await app.StaffClientAsync();
+        var reviewer = await app.StaffClientAsync(Roles.Reviewer);
+        var indicatorId = (int)(await staff.PostOk("/api/indicators", new { key = "idx-a", name = "idx-a", unitLabel = "points", decimals = 2 }))["id"]!;
+        var today = DateOnly.FromDateTime(DateTime.UtcNow);
+        var thisYear = today.Year.ToString(Inv);
+
+        async Task ExpectField(HttpClient client, string url, object body, string field)
+        {
+            var (status, problem) = await client.Post(url, body);
+            Assert.True(status == HttpStatusCode.BadRequest, $"{url}: {(int)status} {problem}");
+            Assert.True(problem!["errors"]!.AsObject().ContainsKey(field), problem.ToJsonString());
+        }
+
+        // Outcomes: known before the period ended, known after today, a period not yet ended, a value beyond 1e12.
+        await ExpectField(reviewer, "/api/outcomes", new { indicator = "idx-a", period = "2021", value = 5.0, observedOn = "2021-06-30" }, "observedOn");
+        await ExpectField(reviewer, "/api/outcomes", new { indicator = "idx-a", period = "2021", value = 5.0, observedOn = today.AddDays(1).ToString("yyyy-MM-dd", Inv) }, "observedOn");
+        await ExpectField(reviewer, "/api/outcomes", new { indicator = "idx-a", period = thisYear, value = 5.0 }, "period");
+        await ExpectField(reviewer, "/api/outcomes", new { indicator = "idx-a", period = "2021", value = 2e12 }, "value");
+        var (csvStatus, csvBody, csvText) = await PostFiles(reviewer, "/api/outcomes/csv", ("file", "indicator,period,value,observed_on\nidx-a,2020,5,2021-01-10\nidx-a,2021,5,2021-12-30\n"));
+        Assert.True(csvStatus == HttpStatusCode.BadRequest, csvText);
+        Assert.True(csvBody!["errors"]!.AsObject().ContainsKey("row 2"), csvText);
+
+        // The catalog's observations.
+        await ExpectField(staff, $"/api/indicators/{indicatorId}/observations", new[] { new { period = "2021", value = 5.0, observedOn = "2021-12-30" } }, "observations[0].observedOn");
+        await ExpectField(staff, $"/api/indicators/{indicatorId}/observations", new[] { new { period = "2021", value = -1e13, observedOn = "2022-01-30" } }, "observations[0].value");
+
+        // Imports: row-level errors in both files.
+        var forecasts = "panel,panel_start,indicator,unit,target_period,expert,round,value\nv-1,2019-03-01,idx-a,points,2020,A,1,5000000000000\nv-1,2019-03-01,idx-a,points,2020,B,1,101\n";
+        var observations = "indicator,period,value,observed_on\nidx-a,2018,100,2019-02-15\nidx-a,2020,103,2020-11-30\nidx-a,2017,1e13,2018-02-15\n";
+        var (status, body, text) = await PostFiles(staff, "/api/imports/past-panels", ("forecasts", forecasts), ("observations", observations));
+        Assert.True(status == HttpStatusCode.BadRequest, text);
+        Assert.Equal(["forecasts row 1", "observations row 2", "observations row 3"], body!["errors"]!.AsObject().Select(e => e.Key).Order());
+
+        Assert.Equal(0, await app.WithDbAsync(db => db.Observations.CountAsync()));
+        Assert.Equal(0, await app.WithDbAsync(db => db.Panels.CountAsync()));
+
+        // In bounds and on valid days, the same inputs are accepted.
+        await reviewer.PostOk("/api/outcomes", new { indicator = "idx-a", period = "2021", value = 1e12, observedOn = "2021-12-31" }, HttpStatusCode.OK);
+        Assert.Equal(1, await app.WithDbAsync(db => db.Observations.CountAsync()));
+    }
+
+    // ---------- Non-finite figures ----------
+
+    [SkippableFact]
+    public async Task Scorecard_WithANonFiniteFigure_ShowsNull_NotAServerError()
+    {
+        var app = await StartAsync();
+        var staff = await app.StaffClientAsync();
+        var reviewer = await app.StaffClientAsync(Roles.Reviewer);
+        var (forecasts, observations) = TrackRecordHistory();
+        var (status, _, text) = await PostFiles(staff, "/api/imports/past-panels", ("forecasts", forecasts), ("observations", observations));
+        Assert.True(status == HttpStatusCode.OK, text);
+
+        // Data stored before the magnitude bound existed: an answer and a consensus of 1e200, whose squares overflow.
+        await app.WithDbAsync(async db =>
+        {
+            var expertA = await db.Memberships.Where(m => m.Expert!.ExternalKey == "A" && m.Panel!.ExternalKey == "tr-1").Select(m => m.Id).SingleAsync();
+            var estimate = await db.Estimates.SingleAsync(e => e.MembershipId == expertA && e.Period == "2020");
+            estimate.Value = 1e200;
+            var consensus = await db.Consensus.FirstAsync(c => c.Period == "2020");
+            (consensus.Value, consensus.Low, consensus.High) = (1e200, 1e200, 1e200);
+            await db.SaveChangesAsync();
+        });
+
+        var scorecard = await reviewer.GetOk("/api/scorecard");
+        var a = ExpertsOf(scorecard)["A"];
+        Assert.Equal(2, (int)a["n"]!);
+        Assert.Null(a["rmse"]);
+        Assert.True(double.IsFinite((double)a["mae"]!));
+        Assert.Null(scorecard["consensus"]!["rmse"]);
+        await reviewer.GetOk("/api/scorecard/backtest");
+        Assert.Contains("not investment advice", await reviewer.GetStringAsync("/Staff/Scorecard"), StringComparison.Ordinal);
+    }
+
+    // ---------- Key namespaces ----------
+
+    [SkippableFact]
+    public async Task ImportedPanelKeyedLikeAnAppPanel_AndAnExternalKeyEqualToAnotherEmail_NeverCollide()
+    {
+        var app = await StartAsync();
+        var staff = await app.StaffClientAsync();
+        var reviewer = await app.StaffClientAsync(Roles.Reviewer);
+        var series = SeriesA();
+        var indicatorId = await IndicatorWithSeriesAsync(staff, "idx-a", series);
+        // X2's external key is X1's email: both show as bob@example.org, and are still two experts.
+        var experts = await ExpertsAsync(staff, ("X1", "bob@example.org", null), ("X2", "other@example.org", "bob@example.org"), ("X3", "third@example.org", null));
+        var (panelId, questions, tokens, _) = await LivePanelAsync(staff, "2020-01-01", "2021", [(indicatorId, "Point")], experts);
+        Assert.Equal(1, panelId);
+        var answers = new Dictionary<string, double> { ["X1"] = 131, ["X2"] = 120, ["X3"] = 126 };
+        foreach (var (key, value) in answers)
+        {
+            await SubmitAsync(app, tokens[key], panelId, "2021", (questions[0], value, null, null, null));
+        }
+        await staff.PostOk($"/api/panels/{panelId}/rounds/1/close", new { }, HttpStatusCode.OK);
+        await staff.PostOk($"/api/panels/{panelId}/conclude", new { }, HttpStatusCode.OK);
+
+        var forecasts = new StringBuilder("panel,panel_start,panel_closed,indicator,unit,target_period,expert,round,value\n");
+        foreach (var (expert, off) in new[] { ("E1", 2.0), ("E2", -3.0), ("E3", 6.0) })
+        {
+            forecasts.Append(Inv, $"panel-1,2019-03-01,2019-04-15,idx-a,points,2020,{expert},1,{series[2020] + off}\n");
+        }
+        var (status, _, text) = await PostFiles(staff, "/api/imports/past-panels", ("forecasts", forecasts.ToString()));
+        Assert.True(status == HttpStatusCode.OK, text);
+
+        var scorecard = await reviewer.GetOk("/api/scorecard");
+        Assert.Equal(2, (int)scorecard["panels"]!);
+        var lines = scorecard["experts"]!.AsArray().Select(e => e!).ToList();
+        var bobs = lines.Where(e => (string)e["expert"]! == "bob@example.org").ToList();
+        Assert.Equal(2, bobs.Count);
+        Assert.Equal(
+            new[] { Math.Abs(answers["X1"] - series[2021]), Math.Abs(answers["X2"] - series[2021]) }.Order(),
+            bobs.Select(b => (double)b["mae"]!).Order());
+        Assert.All(bobs, b => Assert.Equal(1, (int)b["n"]!));
+        Assert.Equal(6, lines.Count);
+        Assert.Equal(2, (int)scorecard["consensus"]!["n"]!);
+
+        var backtest = await reviewer.GetOk("/api/scorecard/backtest");
+        var panels = backtest["panels"]!.AsArray().Select(p => p!).ToList();
+        Assert.Equal(2, panels.Count);
+        Assert.All(panels, p => Assert.Equal("panel-1", (string)p["panel"]!));
+        Assert.Equal(2, panels.Select(p => (int)p["panelId"]!).Distinct().Count());
+        // The app panel closed after the imported one and after its 2020 outcome became known (2021-02-15): it has the import as history.
+        var appLine = panels.Single(p => (int)p["panelId"]! == panelId);
+        Assert.Equal(3, (int)appLine["historyItems"]!);
+        Assert.True((bool)appLine["hasHistory"]!);
+        Assert.Contains("panel-1", await reviewer.GetStringAsync("/Staff/Scorecard/Backtest"), StringComparison.Ordinal);
+    }
+
+    // ---------- Track-record weights per response format ----------
+
+    /// <summary>Two past Range panels on rent-r: A's P50 is closer than B's, but A's range is far too narrow and misses, while B's covers.</summary>
+    private static (string Forecasts, string Observations, Dictionary<int, double> Series) RangeHistory()
+    {
+        var series = Enumerable.Range(2010, 11).ToDictionary(y => y, y => 20.0 + (0.6 * (y - 2010)) + (y % 2 == 0 ? 0.3 : -0.2));
+        var answers = new Dictionary<string, (double Mid, double Below, double Above)>
+        {
+            ["A"] = (0.3, 0.05, 0.05), ["B"] = (0.6, 0.8, 0.2), ["C"] = (-0.8, 0.5, 0.5), ["D"] = (0.6, 1.0, 0.4), ["E"] = (-1.5, 1.0, 3.0),
+        };
+        var f = new StringBuilder("panel,panel_start,panel_closed,indicator,unit,target_period,expert,round,p10,p50,p90\n");
+        foreach (var (panel, start) in new[] { ("rr-1", 2018), ("rr-2", 2019) })
+        {
+            foreach (var (expert, a) in answers)
+            {
+                var mid = series[2020] + a.Mid;
+                f.Append(Inv, $"{panel},{start}-03-01,{start}-04-15,rent-r,points,2020,{expert},1,{mid - a.Below},{mid},{mid + a.Above}\n");
+            }
+        }
+        var o = new StringBuilder("indicator,period,value,observed_on\n");
+        foreach (var (y, v) in series)
+        {
+            o.Append(Inv, $"rent-r,{y},{v},{y + 1}-02-15\n");
+        }
+        return (f.ToString(), o.ToString(), series);
+    }
+
+    [SkippableFact]
+    public async Task TrackRecordConsensus_UsesIntervalScoreWeightsForRangeQuestions_AndAbsoluteErrorWeightsForPointQuestions()
+    {
+        var app = await StartAsync();
+        var staff = await app.StaffClientAsync();
+        var (forecasts, observations, series) = RangeHistory();
+        var (status, _, text) = await PostFiles(staff, "/api/imports/past-panels", ("forecasts", forecasts), ("observations", observations));
+        Assert.True(status == HttpStatusCode.OK, text);
+
+        // Recomputed from the files: scaled |P50 − y| (Point weights) and scaled interval score of [P10, P90] at α = 0.2 (Range weights),
+        // IS = (u − l) + (2/α)(l − y)⁺ + (2/α)(y − u)⁺ (Gneiting & Raftery 2007, eq. 43).
+        var y2020 = series[2020];
+        var rows = ReadCsv(forecasts);
+        double ScaleOf(Dictionary<string, string> r) => NaiveScale(series, r["panel"] == "rr-1" ? 2018 : 2019);
+        var absolute = rows.GroupBy(r => r["expert"]).ToDictionary(g => g.Key, g => g.Select(r => Math.Abs(Num(r, "p50")!.Value - y2020) / ScaleOf(r)).ToList());
+        var interval = rows.GroupBy(r => r["expert"]).ToDictionary(g => g.Key, g => g.Select(r =>
+        {
+            double l = Num(r, "p10")!.Value, u = Num(r, "p90")!.Value;
+            return ((u - l) + (10 * Math.Max(0, l - y2020)) + (10 * Math.Max(0, y2020 - u))) / ScaleOf(r);
+        }).ToList());
+        var pointWeights = ShrunkWeights(absolute);
+        var rangeWeights = ShrunkWeights(interval);
+        Assert.True(pointWeights["A"] > pointWeights["B"] && rangeWeights["B"] > rangeWeights["A"], "The two measures rank A and B differently.");
+
+        // A live panel, weighted by track record, with a Point and a Range question on the same indicator.
+        var indicatorId = (int)(await staff.GetOk("/api/indicators")).AsArray().Single(i => (string)i!["key"]! == "rent-r")!["id"]!;
+        var roster = (await staff.GetOk("/api/experts")).AsArray().ToDictionary(e => (string)e!["externalKey"]!, e => (int)e!["id"]!);
+        var next = (DateTime.UtcNow.Year + 1).ToString(Inv);
+        var (panelId, questions, tokens, memberships) = await LivePanelAsync(
+            staff, DateTime.UtcNow.ToString("yyyy-MM-dd", Inv), next, [(indicatorId, "Point"), (indicatorId, "Range")], roster, "TrackRecord");
+        var points = new Dictionary<string, double> { ["A"] = 30, ["B"] = 27, ["C"] = 28.2, ["D"] = 29.1, ["E"] = 26.4 };
+        var ranges = new Dictionary<string, (double L, double M, double H)>
+        {
+            ["A"] = (29.5, 30, 30.4), ["B"] = (24, 26, 29), ["C"] = (26, 27.5, 29), ["D"] = (27, 28.4, 30), ["E"] = (25, 27, 31),
+        };
+        foreach (var key in FiveExperts)
+        {
+            var (l, m, h) = ranges[key];
+            await SubmitAsync(app, tokens[key], panelId, next, (questions[0], points[key], null, null, null), (questions[1], null, l, m, h));
+        }
+        await staff.PostOk($"/api/panels/{panelId}/rounds/1/close", new { }, HttpStatusCode.OK);
+        var published = (await staff.PostOk($"/api/panels/{panelId}/conclude", new { }, HttpStatusCode.OK)).AsArray()
+            .ToDictionary(c => (int)c!["questionId"]!, c => c!);
+
+        // Point question: the weighted median with the absolute-error weights. Range question: quantile averaging with the
+        // interval-score weights (5 answers: no trim, so the weighted mean of the P50s, P10s and P90s).
+        var expectedPoint = WeightedMedian([.. FiveExperts.Select(k => points[k])], [.. FiveExperts.Select(k => pointWeights[k])]);
+        Assert.Equal(expectedPoint, (double)published[questions[0]]["value"]!, 9);
+        Assert.Equal(FiveExperts.Sum(k => rangeWeights[k] * ranges[k].M), (double)published[questions[1]]["value"]!, 9);
+        Assert.Equal(FiveExperts.Sum(k => rangeWeights[k] * ranges[k].L), (double)published[questions[1]]["low"]!, 9);
+        Assert.Equal(FiveExperts.Sum(k => rangeWeights[k] * ranges[k].H), (double)published[questions[1]]["high"]!, 9);
+
+        // The comparison shows both sets, and computes its track-record column with them.
+        var compare = await staff.GetOk($"/api/panels/{panelId}/consensus/compare");
+        var codeOf = memberships.ToDictionary(kv => kv.Value, kv => kv.Key);
+        foreach (var (set, expected, measure) in new[] { ("point", pointWeights, "ScaledAbsoluteError"), ("range", rangeWeights, "ScaledIntervalScore") })
+        {
+            var weights = compare["weights"]![set]!;
+            Assert.Equal(measure, (string)weights["measure"]!);
+            Assert.Equal(10, (int)weights["recordN"]!);
+            foreach (var m in weights["members"]!.AsArray())
+            {
+                Assert.Equal(expected[codeOf[(int)m!["membershipId"]!]], (double)m["weight"]!, 9);
+                Assert.Equal(2, (int)m["scoredForecasts"]!);
+            }
+        }
+        foreach (var t in compare["targets"]!.AsArray())
+        {
+            Assert.Equal((double)published[(int)t!["questionId"]!]["value"]!, (double)t["trackRecord"]!["value"]!, 9);
+        }
+    }
+
+    // ---------- The backtest through the API ----------
+
+    /// <summary>
+    /// Two past panels: bt-a (closed 2018-04-15) asks about idx-a 2018 and idx-b 2019; bt-b (closed 2020-04-15) about idx-a 2020
+    /// and 2021. idx-a values are known on 15 February of the next year; idx-b 2019 is not in the file.
+    /// </summary>
+    private static (string Forecasts, string Observations) BacktestHistory()
+    {
+        var a = SeriesA();
+        var b = SeriesB();
+        var offsetsA2018 = new Dictionary<string, double> { ["A"] = 0.5, ["B"] = -0.8, ["C"] = 30, ["D"] = -28, ["E"] = 25 };
+        var offsetsB2019 = new Dictionary<string, double> { ["A"] = 40, ["B"] = -35, ["C"] = 1, ["D"] = -1.5, ["E"] = 0.5 };
+        var offsetsLater = new Dictionary<string, double> { ["A"] = 2, ["B"] = -3, ["C"] = 15, ["D"] = -12, ["E"] = 10 };
+        var f = new StringBuilder("panel,panel_start,panel_closed,indicator,unit,target_period,expert,round,value\n");
+        foreach (var e in FiveExperts)
+        {
+            f.Append(Inv, $"bt-a,2018-03-01,2018-04-15,idx-a,points,2018,{e},1,{a[2018] + offsetsA2018[e]}\n");
+            f.Append(Inv, $"bt-a,2018-03-01,2018-04-15,idx-b,points,2019,{e},1,{b[2019] + offsetsB2019[e]}\n");
+            foreach (var year in new[] { 2020, 2021 })
+            {
+                f.Append(Inv, $"bt-b,2020-03-01,2020-04-15,idx-a,points,{year},{e},1,{a[year] + offsetsLater[e] + (year - 2020)}\n");
+            }
+        }
+        var o = new StringBuilder("indicator,period,value,observed_on\n");
+        foreach (var (y, v) in a)
+        {
+            o.Append(Inv, $"idx-a,{y},{v},{y + 1}-02-15\n");
+        }
+        foreach (var (y, v) in b.Where(kv => kv.Key < 2018))
+        {
+            o.Append(Inv, $"idx-b,{y},{v},{y + 1}-02-15\n");
+        }
+        return (f.ToString(), o.ToString());
+    }
+
+    /// <summary>bt-b's backtest recomputed from the files: weights from bt-a's items known before 2020-04-15, equal median against weighted median.</summary>
+    private static (int History, double Equal, double Weighted) RecomputeBtB(string forecasts, bool withIdxB2019)
+    {
+        var a = SeriesA();
+        var b = SeriesB();
+        var rows = ReadCsv(forecasts);
+        var errors = FiveExperts.ToDictionary(e => e, _ => new List<double>());
+        foreach (var r in rows.Where(r => r["panel"] == "bt-a"))
+        {
+            var isB = r["indicator"] == "idx-b";
+            if (isB && !withIdxB2019)
+            {
+                continue;
+            }
+            var truth = isB ? b[2019] : a[2018];
+            var scale = NaiveScale(isB ? b : a, 2018);
+            errors[r["expert"]].Add(Math.Abs(Num(r, "value")!.Value - truth) / scale);
+        }
+        var weights = ShrunkWeights(errors);
+        var scaleB = NaiveScale(a, 2020);
+        double sumEqual = 0, sumWeighted = 0;
+        foreach (var year in new[] { 2020, 2021 })
+        {
+            var answers = rows.Where(r => r["panel"] == "bt-b" && r["target_period"] == year.ToString(Inv)).ToList();
+            var values = answers.Select(r => Num(r, "value")!.Value).ToList();
+            sumEqual += Math.Abs(Median(values) - a[year]) / scaleB;
+            sumWeighted += Math.Abs(WeightedMedian(values, [.. answers.Select(r => weights[r["expert"]])]) - a[year]) / scaleB;
+        }
+        return (errors.Values.Sum(x => x.Count), sumEqual / 2, sumWeighted / 2);
+    }
+
+    [SkippableFact]
+    public async Task Backtest_ThroughTheApi_EqualsARecomputation_IgnoresOutcomesKnownLater_AndSeesBackdatedOnes()
+    {
+        var app = await StartAsync();
+        var staff = await app.StaffClientAsync();
+        var reviewer = await app.StaffClientAsync(Roles.Reviewer);
+        var (forecasts, observations) = BacktestHistory();
+        var (status, _, text) = await PostFiles(staff, "/api/imports/past-panels", ("forecasts", forecasts), ("observations", observations));
+        Assert.True(status == HttpStatusCode.OK, text);
+
+        async Task<(JsonNode A, JsonNode B, JsonNode Pooled)> BacktestAsync()
+        {
+            var body = await reviewer.GetOk("/api/scorecard/backtest");
+            var panels = body["panels"]!.AsArray().ToDictionary(p => (string)p!["panel"]!, p => p!);
+            Assert.Equal(2, panels.Count);
+            return (panels["bt-a"], panels["bt-b"], body["pooled"]!);
+        }
+        static string Line(JsonNode n) => n.ToJsonString();
+
+        var (a0, b0, pooled0) = await BacktestAsync();
+        // bt-a closed with no history: flagged, no weighted figures, not pooled.
+        Assert.False((bool)a0["hasHistory"]!);
+        Assert.Equal(0, (int)a0["historyItems"]!);
+        Assert.Null(a0["weightedScaledMae"]);
+        Assert.Null(a0["difference"]);
+        Assert.Equal(1, (int)a0["n"]!);
+
+        var expected = RecomputeBtB(forecasts, withIdxB2019: false);
+        Assert.True((bool)b0["hasHistory"]!);
+        Assert.Equal(expected.History, (int)b0["historyItems"]!);
+        Assert.Equal(2, (int)b0["n"]!);
+        Assert.Equal(expected.Equal, (double)b0["equalScaledMae"]!, 9);
+        Assert.Equal(expected.Weighted, (double)b0["weightedScaledMae"]!, 9);
+        Assert.NotEqual(expected.Equal, expected.Weighted, 6);
+        Assert.Equal(2, (int)pooled0["n"]!);
+        Assert.Equal(1, (int)pooled0["panels"]!);
+        Assert.Equal(expected.Equal, (double)pooled0["equalScaledMae"]!, 9);
+        Assert.Equal(expected.Weighted, (double)pooled0["weightedScaledMae"]!, 9);
+
+        // idx-b 2019 arrives, known only after both panels closed: it scores bt-a, and changes nothing for bt-b or the pool.
+        var b2019 = SeriesB()[2019];
+        await reviewer.PostOk("/api/outcomes", new { indicator = "idx-b", period = "2019", value = b2019, source = "late bulletin", observedOn = "2020-06-30" }, HttpStatusCode.OK);
+        // idx-a 2018 is corrected later (same value, new source, a later date): it stays known from its first day.
+        await reviewer.PostOk("/api/outcomes", new { indicator = "idx-a", period = "2018", value = SeriesA()[2018], source = "re-issued", observedOn = "2021-01-10" }, HttpStatusCode.OK);
+        var (a1, b1, pooled1) = await BacktestAsync();
+        Assert.Equal(2, (int)a1["n"]!);
+        Assert.Equal(Line(b0), Line(b1));
+        Assert.Equal(Line(pooled0), Line(pooled1));
+
+        // Backdated: idx-b 2019 was in fact known on 2020-01-20, before bt-b closed. Now it informs bt-b's weights.
+        await reviewer.PostOk("/api/outcomes", new { indicator = "idx-b", period = "2019", value = b2019, source = "earlier bulletin", observedOn = "2020-01-20" }, HttpStatusCode.OK);
+        var (_, b2, pooled2) = await BacktestAsync();
+        var leaked = RecomputeBtB(forecasts, withIdxB2019: true);
+        Assert.Equal(leaked.History, (int)b2["historyItems"]!);
+        Assert.Equal(10, leaked.History);
+        Assert.Equal(leaked.Weighted, (double)b2["weightedScaledMae"]!, 9);
+        Assert.NotEqual((double)b0["weightedScaledMae"]!, (double)b2["weightedScaledMae"]!, 6);
+        Assert.Equal(leaked.Weighted, (double)pooled2["weightedScaledMae"]!, 9);
+    }
+
+    [SkippableFact]
+    public async Task Import_WithoutObservedOn_OutcomesCountAsKnownAPublicationLagAfterTheirPeriod()
+    {
+        var app = await StartAsync();
+        var staff = await app.StaffClientAsync();
+        var reviewer = await app.StaffClientAsync(Roles.Reviewer);
+        var a = SeriesA();
+        var offsets = new Dictionary<string, double> { ["A"] = 0.5, ["B"] = -0.8, ["C"] = 30, ["D"] = -28, ["E"] = 25 };
+        var f = new StringBuilder("panel,panel_start,panel_closed,indicator,unit,target_period,expert,round,value\n");
+        foreach (var e in FiveExperts)
+        {
+            f.Append(Inv, $"lag-a,2018-03-01,2018-04-15,idx-a,points,2018,{e},1,{a[2018] + offsets[e]}\n");
+            // 2018 + 90 days = 2019-03-31: before lag-b closed, after lag-c closed.
+            f.Append(Inv, $"lag-b,2019-03-01,2019-04-15,idx-a,points,2020,{e},1,{a[2020] + offsets[e] / 2}\n");
+            f.Append(Inv, $"lag-c,2019-03-01,2019-03-20,idx-a,points,2020,{e},1,{a[2020] - offsets[e] / 3}\n");
+        }
+        var o = new StringBuilder("indicator,period,value\n");
+        foreach (var (y, v) in a)
+        {
+            o.Append(Inv, $"idx-a,{y},{v}\n");
+        }
+        var (status, _, text) = await PostFiles(staff, "/api/imports/past-panels", ("forecasts", f.ToString()), ("observations", o.ToString()));
+        Assert.True(status == HttpStatusCode.OK, text);
+
+        var known = await app.WithDbAsync(db => db.Observations.Where(x => x.Period == "2018").Select(x => x.ObservedOn).SingleAsync());
+        Assert.Equal(new DateOnly(2019, 3, 31), known);
+
+        var body = await reviewer.GetOk("/api/scorecard/backtest");
+        var panels = body["panels"]!.AsArray().ToDictionary(p => (string)p!["panel"]!, p => p!);
+        Assert.True((bool)panels["lag-b"]["hasHistory"]!);
+        Assert.Equal(5, (int)panels["lag-b"]["historyItems"]!);
+        Assert.NotNull(panels["lag-b"]["weightedScaledMae"]);
+        foreach (var none in new[] { "lag-a", "lag-c" })
+        {
+            Assert.False((bool)panels[none]["hasHistory"]!);
+            Assert.Null(panels[none]["weightedScaledMae"]);
+            Assert.NotNull(panels[none]["equalScaledMae"]);
+        }
+        var pooled = body["pooled"]!;
+        Assert.Equal(1, (int)pooled["n"]!);
+        Assert.Equal((double)panels["lag-b"]["equalScaledMae"]!, (double)pooled["equalScaledMae"]!, 12);
+        Assert.Equal((double)panels["lag-b"]["weightedScaledMae"]!, (double)pooled["weightedScaledMae"]!, 12);
+        Assert.Contains("no history", await reviewer.GetStringAsync("/Staff/Scorecard/Backtest"), StringComparison.Ordinal);
+    }
+
+    [SkippableFact]
+    public async Task ConcurrentImportsOfTheSamePanels_OneWins_TheOtherIsRefused_NeverAServerError()
+    {
+        var app = await StartAsync();
+        var staff = await app.StaffClientAsync();
+        var (forecasts, observations) = TrackRecordHistory();
+        for (var attempt = 0; attempt < 3; attempt++)
+        {
+            var keyed = forecasts.Replace("tr-", $"tr{attempt}-", StringComparison.Ordinal);
+            var results = await Task.WhenAll(Enumerable.Range(0, 2).Select(_ => PostFiles(staff, "/api/imports/past-panels", ("forecasts", keyed), ("observations", observations))));
+            Assert.All(results, r => Assert.True(r.Status is HttpStatusCode.OK or HttpStatusCode.BadRequest or HttpStatusCode.Conflict, $"{(int)r.Status} {r.Text}"));
+            Assert.Single(results, r => r.Status == HttpStatusCode.OK);
+            var refused = results.Single(r => r.Status != HttpStatusCode.OK);
+            Assert.NotNull(refused.Body!["title"]);
+        }
+        Assert.Equal(6, await app.WithDbAsync(db => db.Panels.CountAsync()));
+        Assert.Equal(6 * 10, await app.WithDbAsync(db => db.Estimates.CountAsync()));
+    }
+
 }
 
 [Collection(SqliteCollection.Name)]

@@ -13,11 +13,13 @@ public sealed record OutcomeInput(string? Indicator, string? Period, double? Val
 /// Records outcomes: an outcome is the observation of an indicator at a period, so this goes
 /// through the catalog's observation recording (a value for a period that has one is a
 /// correction: history kept, audited as <c>observation.corrected</c>). Several indicators at
-/// once are all-or-nothing in one transaction.
+/// once are all-or-nothing in one transaction. An outcome is of a period that has ended; the day it
+/// became known (<c>observedOn</c>) lies between the period's end and today; values are within
+/// ±10¹² (<see cref="Figures.MaxMagnitude"/>).
 /// </summary>
-public sealed class OutcomeRecorder(PanelRoundDbContext db, Catalog catalog)
+public sealed class OutcomeRecorder(PanelRoundDbContext db, Catalog catalog, TimeProvider clock)
 {
-    /// <summary>Records one outcome from the form; errors are keyed by field (indicator, period, value, source).</summary>
+    /// <summary>Records one outcome from the form; errors are keyed by field (indicator, period, value, source, observedOn).</summary>
     public Task<Outcome<ObservationImportResult>> RecordAsync(OutcomeInput input, string actor) =>
         RecordAsync([input], actor, (_, field) => field);
 
@@ -73,6 +75,7 @@ public sealed class OutcomeRecorder(PanelRoundDbContext db, Catalog catalog)
     private async Task<Outcome<ObservationImportResult>> RecordAsync(IReadOnlyList<OutcomeInput> inputs, string actor, Func<int, string, string> keyOf)
     {
         var errors = new FieldErrors();
+        var today = DateOnly.FromDateTime(clock.GetUtcNow().UtcDateTime);
         var keys = inputs.Select(i => i.Indicator?.Trim().ToLowerInvariant()).Where(k => !string.IsNullOrEmpty(k)).Distinct().ToList();
         var indicators = await db.Indicators.AsNoTracking().Where(i => keys.Contains(i.Key)).ToDictionaryAsync(i => i.Key, i => i.Id);
         var groups = new Dictionary<int, List<ObservationInput>>();
@@ -99,6 +102,10 @@ public sealed class OutcomeRecorder(PanelRoundDbContext db, Catalog catalog)
             {
                 errors.Add(keyOf(i, "period"), label + $"'{o.Period}' is not a period: write a year such as 2024 or a quarter such as 2024Q3.");
             }
+            else if (period.Value.EndDate >= today)
+            {
+                errors.Add(keyOf(i, "period"), label + $"{period} has not ended yet (it ends on {period.Value.EndDate:yyyy-MM-dd}): its outcome cannot be known.");
+            }
             else if (indicatorId is { } ind && !seen.Add((ind, period.Value)))
             {
                 errors.Add(keyOf(i, "period"), label + $"{key} {period} appears twice.");
@@ -106,6 +113,14 @@ public sealed class OutcomeRecorder(PanelRoundDbContext db, Catalog catalog)
             if (o.Value is not { } v || !double.IsFinite(v))
             {
                 errors.Add(keyOf(i, "value"), label + "The value must be a number.");
+            }
+            else if (!Figures.InBounds(v))
+            {
+                errors.Add(keyOf(i, "value"), label + "The value " + Figures.OutOfBoundsMessage);
+            }
+            if (Catalog.ObservedOnError(period, o.ObservedOn, today) is { } dateError)
+            {
+                errors.Add(keyOf(i, "observedOn"), label + dateError);
             }
             if (o.Source?.Trim().Length > 500)
             {

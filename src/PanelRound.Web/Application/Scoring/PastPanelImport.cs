@@ -2,6 +2,7 @@ using System.Globalization;
 using System.Text;
 using System.Text.RegularExpressions;
 using Microsoft.EntityFrameworkCore;
+using Microsoft.Extensions.Options;
 using PanelRound.Core.Domain;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
@@ -25,7 +26,11 @@ public sealed record PastPanelImportResult(
 /// optional <c>panel_closed</c> (yyyy-MM-dd, the day the panel concluded; default its start, which
 /// can only make the backtest use less history, never more). <c>observations</c>: <c>indicator</c>,
 /// <c>period</c>, <c>value</c>, optional <c>source</c> and <c>observed_on</c> (the day the value became
-/// known; without it, the import day).</para>
+/// known, between the period's end and today; without it, the period's end plus
+/// <c>Scoring:ImportPublicationLagDays</c>, at the latest the import day, so that imported history
+/// informs the backtest of later panels as it would have then). Numbers are within ±10¹².</para>
+/// <para>Two imports of the same panel key at once: the unique index lets one win, and the other
+/// gets a conflict with nothing imported.</para>
 /// <para>Each distinct panel key becomes a concluded panel (external key = the key) with one
 /// question per indicator (Point or Range by the columns filled), one membership per expert (a
 /// random panel code and an unusable random token hash), its rounds closed with frozen feedback,
@@ -35,7 +40,7 @@ public sealed record PastPanelImportResult(
 /// correction rule as the catalog: a different value for a period that has one supersedes it and
 /// is audited.</para>
 /// </remarks>
-public sealed partial class PastPanelImport(PanelRoundDbContext db, TimeProvider clock, ConsensusPublisher publisher)
+public sealed partial class PastPanelImport(PanelRoundDbContext db, TimeProvider clock, ConsensusPublisher publisher, IOptions<ScoringOptions> options)
 {
     /// <summary>The most row errors reported; the rest are counted.</summary>
     public const int MaxReportedErrors = 200;
@@ -75,7 +80,8 @@ public sealed partial class PastPanelImport(PanelRoundDbContext db, TimeProvider
     {
         var report = new Report();
         var forecastRows = ParseForecasts(forecasts, report);
-        var observationRows = observations is null ? [] : ParseObservations(observations, report);
+        var today = DateOnly.FromDateTime(clock.GetUtcNow().UtcDateTime);
+        var observationRows = observations is null ? [] : ParseObservations(observations, report, today, options.Value.ImportPublicationLagDays);
         if (report.Count > 0 || forecastRows is null || observationRows is null)
         {
             return Invalid(report);
@@ -108,6 +114,22 @@ public sealed partial class PastPanelImport(PanelRoundDbContext db, TimeProvider
             return Invalid(report);
         }
 
+        try
+        {
+            return await SaveAsync(forecastRows, observationRows, indicators, actor);
+        }
+        catch (DbUpdateException)
+        {
+            // A unique index refused a row: another import created the same panel, indicator or expert meanwhile.
+            db.ChangeTracker.Clear();
+            return Outcome<PastPanelImportResult>.Conflict(
+                "Another import of the same panels (or of the same new indicators or experts) finished meanwhile; nothing was imported. Reload and check before importing again.");
+        }
+    }
+
+    private async Task<Outcome<PastPanelImportResult>> SaveAsync(
+        List<ForecastRow> forecastRows, List<ObservationRow> observationRows, Dictionary<string, Indicator> indicators, string actor)
+    {
         var now = clock.GetUtcNow().UtcDateTime;
         await using var tx = await db.Database.BeginTransactionAsync();
 
@@ -364,6 +386,13 @@ public sealed partial class PastPanelImport(PanelRoundDbContext db, TimeProvider
                 {
                     Error("the range must satisfy p10 <= p50 <= p90.");
                 }
+                foreach (var (name, v) in new[] { ("value", value), ("p10", p10), ("p50", p50), ("p90", p90) })
+                {
+                    if (v is { } x && !Figures.InBounds(x))
+                    {
+                        Error($"{name} {x.ToString("G", CultureInfo.InvariantCulture)} {Figures.OutOfBoundsMessage}");
+                    }
+                }
             }
             if (report.Count > before)
             {
@@ -415,7 +444,7 @@ public sealed partial class PastPanelImport(PanelRoundDbContext db, TimeProvider
         return result;
     }
 
-    private static List<ObservationRow>? ParseObservations(Stream stream, Report report)
+    private static List<ObservationRow>? ParseObservations(Stream stream, Report report, DateOnly today, int lagDays)
     {
         var errors = new FieldErrors();
         var read = OutcomeRecorder.ReadCsv(stream, "observations", errors);
@@ -452,6 +481,10 @@ public sealed partial class PastPanelImport(PanelRoundDbContext db, TimeProvider
             {
                 Error($"value '{r["value"]}' is not a number (use a dot for decimals).");
             }
+            else if (!Figures.InBounds(value.Value))
+            {
+                Error($"value {r["value"]} {Figures.OutOfBoundsMessage}");
+            }
             var source = r["source"];
             if (source?.Length > 500)
             {
@@ -461,6 +494,10 @@ public sealed partial class PastPanelImport(PanelRoundDbContext db, TimeProvider
             if (badDate)
             {
                 Error($"observed_on '{r["observed_on"]}' is not a date (yyyy-MM-dd).");
+            }
+            else if (Catalog.ObservedOnError(period, observedOn, today) is { } dateError)
+            {
+                Error("observed_on: " + dateError);
             }
             if (report.Count > before)
             {
@@ -474,6 +511,10 @@ public sealed partial class PastPanelImport(PanelRoundDbContext db, TimeProvider
             var text = r["value"]!;
             var dot = text.IndexOf('.', StringComparison.Ordinal);
             var decimals = dot < 0 || text.Contains('e', StringComparison.OrdinalIgnoreCase) ? 0 : Math.Min(4, text.Length - dot - 1);
+            // Without observed_on, a value counts as published a usual lag after its period ended (at the latest today).
+            var end = period.Value.EndDate;
+            var lagged = end.AddDays(lagDays);
+            observedOn ??= lagged <= today ? lagged : end < today ? today : null;
             result.Add(new ObservationRow(r.Row, indicator!, period.Value, value!.Value, source, observedOn, decimals));
         }
         return result;

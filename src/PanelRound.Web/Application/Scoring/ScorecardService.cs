@@ -53,14 +53,24 @@ public sealed record PanelScorecardView(
     ScoredPanel Panel, IReadOnlyList<PanelTargetLine> Targets, ErrorSummary Consensus, ErrorSummary Naive, ErrorSummary Experts);
 
 /// <summary>One panel's backtest line.</summary>
-public sealed record BacktestLine(ScoredPanel Panel, BacktestPanelResult Result);
+/// <param name="Panel">The panel.</param>
+/// <param name="Result">Its backtest.</param>
+/// <param name="HasHistory">True when its weights rested on a record (someone had scored forecasts known before it closed); without, weighted equals equal by construction and is not a result.</param>
+public sealed record BacktestLine(ScoredPanel Panel, BacktestPanelResult Result, bool HasHistory);
 
+/// <summary>The backtest of every panel with outcomes.</summary>
+/// <param name="Panels">Per panel, by closing day.</param>
+/// <param name="Pooled">Equal against weighted over the scored question-periods of the panels with history only.</param>
+/// <param name="PseudoForecasts">k.</param>
 public sealed record BacktestView(IReadOnlyList<BacktestLine> Panels, BacktestComparison Pooled, double PseudoForecasts);
 
 /// <summary>Equal-weight and track-record consensus of one question-period.</summary>
-public sealed record ComparedValue(double Value, double Low, double High, int N, string Method);
+public sealed record ComparedValue(double? Value, double? Low, double? High, int N, string Method)
+{
+    public static ComparedValue Of(ConsensusEntry c) => new(Figures.Finite(c.Value), Figures.Finite(c.Low), Figures.Finite(c.High), c.N, c.Method);
+}
 
-public sealed record ComparedTarget(int QuestionId, string Question, string Indicator, string Period, ComparedValue Equal, ComparedValue TrackRecord, double Difference);
+public sealed record ComparedTarget(int QuestionId, string Question, string Indicator, string Period, string Format, ComparedValue Equal, ComparedValue TrackRecord, double? Difference);
 
 public sealed record ConsensusComparison(
     int PanelId, string Weighting, int Round, PanelWeights Weights, IReadOnlyList<ComparedTarget> Targets);
@@ -106,7 +116,8 @@ public sealed class ScorecardService(
         if (expert is null)
         {
             var e = await db.Experts.AsNoTracking().FirstOrDefaultAsync(x => x.Id == expertId);
-            return e is null ? null : new ExpertScorecardView(new ScoredExpert(e.Id, ScoringService.ExpertKeyOf(e.ExternalKey, e.Email), e.Name), null, []);
+            return e is null ? null : new ExpertScorecardView(
+                new ScoredExpert(e.Id, ScoringService.ExpertKeyOf(e.Id), ScoringService.ExpertKeyOf(e.ExternalKey, e.Email), e.Name), null, []);
         }
         var own = data.ExpertItems.Where(i => i.ExpertKey == expert.Key).ToList();
         var score = Scorecard.ForExperts(own, ScorecardOptions.Default).SingleOrDefault();
@@ -166,6 +177,8 @@ public sealed class ScorecardService(
     /// <summary>
     /// The backtest over the database's panels: each panel's consensus rebuilt with the weights
     /// known before it closed, with the panel's own consensus settings, against equal weights.
+    /// The pooled comparison takes only the panels whose weights rested on a record: without
+    /// one, the weights are equal and the difference is 0 by construction, not evidence.
     /// </summary>
     public async Task<BacktestView> BacktestAsync(ScoringData? data = null)
     {
@@ -182,8 +195,10 @@ public sealed class ScorecardService(
                 PseudoForecasts = K,
             });
             var result = run.Panels[0];
-            lines.Add(new BacktestLine(scored, result));
-            if (result.Comparison is { N: > 0, EqualScaledMae: { } eq, WeightedScaledMae: { } we })
+            var hasHistory = result.HistoryItems > 0
+                && (result.PointWeights?.PoolMeanError is not null || result.RangeWeights?.PoolMeanError is not null);
+            lines.Add(new BacktestLine(scored, result, hasHistory));
+            if (hasHistory && result.Comparison is { N: > 0, EqualScaledMae: { } eq, WeightedScaledMae: { } we })
             {
                 n += result.Comparison.N;
                 sumEqual += eq * result.Comparison.N;
@@ -197,9 +212,10 @@ public sealed class ScorecardService(
     /// <summary>
     /// Equal-weight and track-record consensus of a panel's last closed round, side by side, with
     /// the members' weights (as of the panel's conclusion, or now while it runs); null when the
-    /// panel does not exist or no round has closed.
+    /// panel does not exist or no round has closed. The weights shown are the ones the track-record
+    /// consensus is computed with (one set per response format), from one load of the scoring data.
     /// </summary>
-    public async Task<ConsensusComparison?> CompareAsync(int panelId)
+    public async Task<ConsensusComparison?> CompareAsync(int panelId, ScoringData? data = null)
     {
         var panel = await db.Panels.AsNoTracking().Include(p => p.Questions).ThenInclude(q => q.Indicator).Include(p => p.Rounds)
             .AsSplitQuery().FirstOrDefaultAsync(p => p.Id == panelId);
@@ -209,16 +225,18 @@ public sealed class ScorecardService(
             return null;
         }
         var asOf = panel.ConcludedAt ?? clock.GetUtcNow().UtcDateTime;
-        var detail = (await weights.DetailAsync(panelId, asOf))!;
+        data ??= await scoring.LoadAsync();
+        var detail = (await weights.DetailAsync(panelId, asOf, data))!;
         var equal = await publisher.ComputeAsync(panel, last, ConsensusWeighting.Equal);
-        var weighted = (await publisher.ComputeAsync(panel, last, ConsensusWeighting.TrackRecord)).ToDictionary(c => (c.QuestionId, c.Period));
+        var weighted = (await publisher.ComputeAsync(panel, last, ConsensusWeighting.TrackRecord, detail.ByFormat)).ToDictionary(c => (c.QuestionId, c.Period));
         var questions = panel.Questions.ToDictionary(q => q.Id);
         var targets = equal.Select(e =>
         {
             var w = weighted[(e.QuestionId, e.Period)];
             var q = questions[e.QuestionId];
-            return new ComparedTarget(e.QuestionId, q.Label, q.Indicator!.Key, e.Period,
-                new ComparedValue(e.Value, e.Low, e.High, e.N, e.Method), new ComparedValue(w.Value, w.Low, w.High, w.N, w.Method), w.Value - e.Value);
+            return new ComparedTarget(e.QuestionId, q.Label, q.Indicator!.Key, e.Period, q.Format.ToString(),
+                ComparedValue.Of(e), ComparedValue.Of(w),
+                Figures.Finite(w.Value - e.Value));
         }).ToList();
         return new ConsensusComparison(panelId, panel.Settings.Weighting.ToString(), last.Number, detail, targets);
     }

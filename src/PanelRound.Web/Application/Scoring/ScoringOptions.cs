@@ -13,5 +13,12 @@ public sealed class ScoringOptions
     /// </summary>
     public double PseudoForecasts { get; set; } = TrackRecordWeights.DefaultPseudoForecasts;
 
-    public bool IsValid => double.IsFinite(PseudoForecasts) && PseudoForecasts >= 0;
+    /// <summary>
+    /// <c>Scoring:ImportPublicationLagDays</c>: when an imported observation has no <c>observed_on</c>,
+    /// it counts as known this many days after its period's end (0 to 3650; default 90), and at the
+    /// latest on the import day, so that imported history can inform the backtest of later panels.
+    /// </summary>
+    public int ImportPublicationLagDays { get; set; } = 90;
+
+    public bool IsValid => double.IsFinite(PseudoForecasts) && PseudoForecasts >= 0 && ImportPublicationLagDays is >= 0 and <= 3650;
 }

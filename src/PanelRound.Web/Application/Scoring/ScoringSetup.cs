@@ -8,7 +8,7 @@ public static class ScoringSetup
     public static IServiceCollection AddPanelRoundScoring(this IServiceCollection services)
     {
         services.AddOptions<ScoringOptions>().BindConfiguration(ScoringOptions.Section)
-            .Validate(o => o.IsValid, "Scoring:PseudoForecasts must be a finite number, 0 or more.")
+            .Validate(o => o.IsValid, "Scoring:PseudoForecasts must be a finite number, 0 or more; Scoring:ImportPublicationLagDays 0 to 3650.")
             .ValidateOnStart();
         services.AddScoped<ScoringService>();
         services.AddScoped<TrackRecordWeightsService>();

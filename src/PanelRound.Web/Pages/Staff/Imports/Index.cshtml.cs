@@ -2,14 +2,18 @@ using System.Diagnostics;
 using Microsoft.AspNetCore.Authorization;
 using Microsoft.AspNetCore.Mvc;
 using Microsoft.AspNetCore.Mvc.RazorPages;
+using Microsoft.Extensions.Options;
 using PanelRound.Web.Application.Scoring;
 using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Pages.Staff.Imports;
 
 [Authorize(Policy = AuthSetup.FacilitatorPolicy)]
-public class IndexModel(PastPanelImport import) : PageModel
+public class IndexModel(PastPanelImport import, IOptions<ScoringOptions> options) : PageModel
 {
+    /// <summary>The publication lag assumed for observations without observed_on.</summary>
+    public int LagDays => options.Value.ImportPublicationLagDays;
+
     public IReadOnlyList<KeyValuePair<string, string[]>> Errors { get; private set; } = [];
 
     public PastPanelImportResult? Result { get; private set; }
@@ -34,7 +38,7 @@ public class IndexModel(PastPanelImport import) : PageModel
         Seconds = watch.Elapsed.TotalSeconds;
         if (!outcome.IsOk)
         {
-            Errors = [.. outcome.Errors];
+            Errors = outcome.Errors.Count > 0 ? [.. outcome.Errors] : [new("import", [outcome.Message ?? "Nothing was imported."])];
             return Page();
         }
         Result = outcome.Value;

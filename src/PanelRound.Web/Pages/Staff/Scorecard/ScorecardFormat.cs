@@ -14,13 +14,13 @@ public static class ScorecardFormat
     public const string Dash = "–";
 
     public static string Number(double? value, int decimals = 2) =>
-        value is { } v ? v.ToString("N" + decimals.ToString(CultureInfo.InvariantCulture), CultureInfo.InvariantCulture) : Dash;
+        value is { } v && double.IsFinite(v) ? v.ToString("N" + decimals.ToString(CultureInfo.InvariantCulture), CultureInfo.InvariantCulture) : Dash;
 
     public static string Signed(double? value, int decimals = 2) =>
-        value is { } v ? (v > 0 ? "+" : "") + v.ToString("N" + decimals.ToString(CultureInfo.InvariantCulture), CultureInfo.InvariantCulture) : Dash;
+        value is { } v && double.IsFinite(v) ? (v > 0 ? "+" : "") + v.ToString("N" + decimals.ToString(CultureInfo.InvariantCulture), CultureInfo.InvariantCulture) : Dash;
 
     public static string Percent(double? share) =>
-        share is { } s ? (100 * s).ToString("N0", CultureInfo.InvariantCulture) + "%" : Dash;
+        share is { } s && double.IsFinite(s) ? (100 * s).ToString("N0", CultureInfo.InvariantCulture) + "%" : Dash;
 
     /// <summary>The bias direction in words.</summary>
     public static string Bias(BiasDirection? bias) => bias switch
