@@ -333,7 +333,8 @@ namespace PanelRound.Migrations.Postgres.Migrations
                     TokenIssuedAt = table.Column<DateTime>(type: "timestamp with time zone", nullable: false),
                     State = table.Column<int>(type: "integer", nullable: false),
                     CreatedAt = table.Column<DateTime>(type: "timestamp with time zone", nullable: false),
-                    LastSeenAt = table.Column<DateTime>(type: "timestamp with time zone", nullable: true)
+                    LastSeenAt = table.Column<DateTime>(type: "timestamp with time zone", nullable: true),
+                    RevokedAt = table.Column<DateTime>(type: "timestamp with time zone", nullable: true)
                 },
                 constraints: table =>
                 {
@@ -399,7 +400,8 @@ namespace PanelRound.Migrations.Postgres.Migrations
                     OpensAt = table.Column<DateTime>(type: "timestamp with time zone", nullable: false),
                     ClosesAt = table.Column<DateTime>(type: "timestamp with time zone", nullable: false),
                     ClosedAt = table.Column<DateTime>(type: "timestamp with time zone", nullable: true),
-                    ClosedBy = table.Column<string>(type: "character varying(256)", maxLength: 256, nullable: true)
+                    ClosedBy = table.Column<string>(type: "character varying(256)", maxLength: 256, nullable: true),
+                    Version = table.Column<Guid>(type: "uuid", nullable: false)
                 },
                 constraints: table =>
                 {

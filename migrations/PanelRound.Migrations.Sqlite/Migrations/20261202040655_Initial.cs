@@ -332,7 +332,8 @@ namespace PanelRound.Migrations.Sqlite.Migrations
                     TokenIssuedAt = table.Column<DateTime>(type: "TEXT", nullable: false),
                     State = table.Column<int>(type: "INTEGER", nullable: false),
                     CreatedAt = table.Column<DateTime>(type: "TEXT", nullable: false),
-                    LastSeenAt = table.Column<DateTime>(type: "TEXT", nullable: true)
+                    LastSeenAt = table.Column<DateTime>(type: "TEXT", nullable: true),
+                    RevokedAt = table.Column<DateTime>(type: "TEXT", nullable: true)
                 },
                 constraints: table =>
                 {
@@ -398,7 +399,8 @@ namespace PanelRound.Migrations.Sqlite.Migrations
                     OpensAt = table.Column<DateTime>(type: "TEXT", nullable: false),
                     ClosesAt = table.Column<DateTime>(type: "TEXT", nullable: false),
                     ClosedAt = table.Column<DateTime>(type: "TEXT", nullable: true),
-                    ClosedBy = table.Column<string>(type: "TEXT", maxLength: 256, nullable: true)
+                    ClosedBy = table.Column<string>(type: "TEXT", maxLength: 256, nullable: true),
+                    Version = table.Column<Guid>(type: "TEXT", nullable: false)
                 },
                 constraints: table =>
                 {
