@@ -1,4 +1,3 @@
-using Microsoft.EntityFrameworkCore;
 using PanelRound.Data;
 using PanelRound.Web.Apis;
 using PanelRound.Web.Application;
@@ -51,14 +50,13 @@ public static class WebSetup
             var loader = ActivatorUtilities.CreateInstance<DemoLoader>(scope.ServiceProvider);
             await loader.LoadIfEmptyAsync(app.Environment.ContentRootPath, demo);
         }
-        var urls = app.Urls.Count > 0 ? string.Join(", ", app.Urls) : app.Configuration["urls"] ?? "http://localhost:5000";
         app.Lifetime.ApplicationStarted.Register(() =>
         {
             var provider = app.Services.GetRequiredService<DatabaseOptions>().Provider;
             Console.WriteLine($"PanelRound is serving on {string.Join(", ", app.Urls)} (database: {provider}).");
             if (demo.Enabled)
             {
-                DemoLoader.PrintSignIns(app.Urls.FirstOrDefault() ?? urls, app.Services);
+                DemoLoader.PrintSignIns(app.Urls.First(), app.Services);
             }
         });
     }
@@ -92,6 +90,4 @@ public static class WebSetup
         return app;
     }
 
-    internal static async Task<bool> IsEmptyAsync(PanelRoundDbContext db) =>
-        !await db.Indicators.AnyAsync() && !await db.Users.AnyAsync();
 }

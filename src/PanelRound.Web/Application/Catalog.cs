@@ -240,14 +240,21 @@ public sealed partial class Catalog(PanelRoundDbContext db, TimeProvider clock)
         return Outcome<Expert>.Ok(expert);
     }
 
-    /// <summary>The current observations of an indicator, oldest first; optionally only those ending before a date.</summary>
-    public static async Task<IReadOnlyList<Observation>> CurrentObservationsAsync(PanelRoundDbContext db, int indicatorId, DateOnly? endingBefore = null)
-    {
-        var rows = await db.Observations.AsNoTracking()
+    /// <summary>The current observations of an indicator, oldest first.</summary>
+    public static async Task<IReadOnlyList<Observation>> CurrentObservationsAsync(PanelRoundDbContext db, int indicatorId) =>
+        await db.Observations.AsNoTracking()
             .Where(o => o.IndicatorId == indicatorId && o.SupersededAt == null)
             .OrderBy(o => o.PeriodSortKey).ToListAsync();
-        return endingBefore is { } d ? rows.Where(o => Period.Parse(o.Period).EndDate < d).ToList() : rows;
-    }
+
+    /// <summary>
+    /// The reference series of several indicators in one query: their current observations whose
+    /// period ended before <paramref name="startsOn"/> (a panel's start), oldest first, by indicator id.
+    /// </summary>
+    public static async Task<ILookup<int, SeriesPoint>> ReferenceSeriesAsync(PanelRoundDbContext db, IReadOnlyCollection<int> indicatorIds, DateOnly startsOn) =>
+        (await db.Observations.AsNoTracking()
+            .Where(o => indicatorIds.Contains(o.IndicatorId) && o.SupersededAt == null).OrderBy(o => o.PeriodSortKey).ToListAsync())
+        .Where(o => Period.Parse(o.Period).EndDate < startsOn)
+        .ToLookup(o => o.IndicatorId, o => new SeriesPoint(o.Period, o.Value));
 
     private DateTime Now => clock.GetUtcNow().UtcDateTime;
 

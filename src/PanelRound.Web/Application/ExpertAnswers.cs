@@ -68,10 +68,11 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
         var previousRound = round is null ? null : panel.Rounds.FirstOrDefault(r => r.Number == round.Number - 1);
         var previousRows = previousRound is null ? [] : own.Where(e => e.RoundId == previousRound.Id && !e.IsDraft).ToList();
 
+        var references = await Catalog.ReferenceSeriesAsync(db, panel.Questions.Select(q => q.IndicatorId).Distinct().ToList(), panel.StartsOn);
         var questions = new List<ExpertQuestion>();
         foreach (var q in panel.Questions.OrderBy(q => q.Order))
         {
-            var reference = (await Catalog.CurrentObservationsAsync(db, q.IndicatorId, panel.StartsOn)).Select(o => new SeriesPoint(o.Period, o.Value)).ToList();
+            var reference = references[q.IndicatorId].ToList();
             var periods = new List<ExpertPeriod>();
             IReadOnlyList<string> rationales = [];
             foreach (var period in q.TargetPeriods.Split(','))

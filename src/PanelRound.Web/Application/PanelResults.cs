@@ -43,11 +43,7 @@ public sealed class PanelResults(PanelRoundDbContext db)
         {
             answersByRound[r.Number] = (await PanelWorkflow.CountedAnswersAsync(db, r.Id)).ToLookup(a => (a.QuestionId, a.Period));
         }
-        var indicatorIds = panel.Questions.Select(q => q.IndicatorId).Distinct().ToList();
-        var observations = (await db.Observations.AsNoTracking()
-                .Where(o => indicatorIds.Contains(o.IndicatorId) && o.SupersededAt == null).OrderBy(o => o.PeriodSortKey).ToListAsync())
-            .Where(o => Core.Domain.Period.Parse(o.Period).EndDate < panel.StartsOn)
-            .ToLookup(o => o.IndicatorId);
+        var references = await Catalog.ReferenceSeriesAsync(db, panel.Questions.Select(q => q.IndicatorId).Distinct().ToList(), panel.StartsOn);
         var frozen = (await db.RoundFeedback.AsNoTracking().Where(f => rounds.Select(r => r.Id).Contains(f.RoundId)).ToListAsync())
             .ToDictionary(f => (f.RoundId, f.QuestionId, f.Period));
         var consensus = await db.Consensus.AsNoTracking().Where(c => c.PanelId == panelId).ToListAsync();
@@ -89,7 +85,7 @@ public sealed class PanelResults(PanelRoundDbContext db)
                 .Select(p => frozen.GetValueOrDefault((latestFrozen.Id, q.Id, p)))
                 .Where(f => f is not null && !f.Withheld)
                 .SelectMany(f => JsonSerializer.Deserialize<List<string>>(f!.RationalesJson) ?? []).Distinct().Order(StringComparer.Ordinal).ToList();
-            var reference = observations[q.IndicatorId].Select(o => new SeriesPoint(o.Period, o.Value)).ToList();
+            var reference = references[q.IndicatorId].ToList();
             questions.Add(new QuestionResult(q.Id, q.Label, q.Format, q.Indicator!.UnitLabel, q.Indicator.Decimals, reference, periods, reason, text, rationales));
         }
         return new PanelResultsView(panel.Id, panel.Title, panel.State, panel.Settings, questions);

@@ -1,4 +1,5 @@
 using Microsoft.AspNetCore.Identity;
+using Microsoft.EntityFrameworkCore;
 using PanelRound.Core.Domain;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
@@ -15,7 +16,7 @@ public sealed class DemoLoader(PanelRoundDbContext db, UserManager<StaffUser> us
     /// <summary>Loads the scenario when the database has no indicators and no staff; returns whether it loaded.</summary>
     public async Task<bool> LoadIfEmptyAsync(string contentRoot, DemoOptions options)
     {
-        if (!await WebSetup.IsEmptyAsync(db))
+        if (await db.Indicators.AnyAsync() || await db.Users.AnyAsync())
         {
             return false;
         }

@@ -38,11 +38,6 @@ public static class CsvFiles
         return Read(s);
     }
 
-    public static (IReadOnlyList<string> Headers, IReadOnlyList<CsvRow> Rows) ReadText(string text)
-    {
-        using var s = new MemoryStream(Encoding.UTF8.GetBytes(text));
-        return Read(s);
-    }
 
     /// <summary>Writes a header and rows; null fields are written empty.</summary>
     public static void Write(TextWriter writer, IReadOnlyList<string> headers, IEnumerable<IReadOnlyList<string?>> rows)

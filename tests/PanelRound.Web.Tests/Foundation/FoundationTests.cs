@@ -137,12 +137,7 @@ public abstract partial class FoundationTests(IDatabaseFixture fixture) : Provid
         Assert.Equal(counts.Estimates, again.Estimates);
     }
 
-    private async Task<string> NewConnectionAsync()
-    {
-        var app = await StartAsync();
-        // The fixture made a database for this app; reuse its connection string for the command.
-        return app.ConnectionString;
-    }
+    private Task<string> NewConnectionAsync() => NewDatabaseAsync();
 
     private async Task<string> RunEntryPointAsync(string connection, string[] args, string? stdin = null)
     {

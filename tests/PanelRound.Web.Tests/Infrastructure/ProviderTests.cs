@@ -13,6 +13,9 @@ public abstract class ProviderTests(IDatabaseFixture fixture) : IAsyncDisposable
 
     protected DatabaseProvider Provider => fixture.Provider;
 
+    /// <summary>A connection string to a new, empty database that no app has touched yet.</summary>
+    protected Task<string> NewDatabaseAsync() => fixture.NewDatabaseAsync();
+
     /// <summary>Starts the app on a new database (or on the one given, to test a restart).</summary>
     protected async Task<TestApp> StartAsync(IDictionary<string, string?>? settings = null, string? connectionString = null)
     {
