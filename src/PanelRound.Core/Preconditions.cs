@@ -118,6 +118,23 @@ public static class Preconditions
         }
     }
 
+    /// <summary>
+    /// Throws when <paramref name="values"/> holds a NaN, an infinity or a value beyond
+    /// ±<see cref="Domain.Numbers.MaxMagnitude"/>: the domain in which the statistics cannot overflow.
+    /// </summary>
+    public static void CheckAllWithinMagnitude(ReadOnlySpan<double> values, string paramName)
+    {
+        CheckAllFinite(values, paramName);
+        for (var i = 0; i < values.Length; i++)
+        {
+            if (!Domain.Numbers.InBounds(values[i]))
+            {
+                throw new ArgumentOutOfRangeException(
+                    paramName, values[i], $"Element {i}: every value must be a finite number with magnitude at most {Domain.Numbers.MaxMagnitude:0e0}.");
+            }
+        }
+    }
+
     /// <summary>Throws when <paramref name="values"/> is empty.</summary>
     public static void CheckNotEmpty<T>(
         IReadOnlyCollection<T> values,

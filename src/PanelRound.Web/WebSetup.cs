@@ -18,6 +18,7 @@ public static class WebSetup
         var services = builder.Services;
         services.AddSingleton(TimeProvider.System);
         services.AddProblemDetails();
+        services.AddBadRequestProblems();
         services.AddOpenApi();
         services.AddRazorPages(o =>
         {

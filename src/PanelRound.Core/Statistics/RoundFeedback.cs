@@ -25,7 +25,7 @@ public static class RoundFeedback
         ArgumentNullException.ThrowIfNull(values);
         ArgumentNullException.ThrowIfNull(settings);
         var original = AsSpan(values);
-        Preconditions.CheckAllFinite(original, nameof(values));
+        Preconditions.CheckAllWithinMagnitude(original, nameof(values));
         if (original.Length < settings.MinimumGroupSize)
         {
             return FeedbackResult<PointFeedback>.Withheld(original.Length, settings.MinimumGroupSize);
@@ -50,6 +50,8 @@ public static class RoundFeedback
         }
 
         var (p10, p50, p90) = Split(answers);
+        Preconditions.CheckAllWithinMagnitude(p10, nameof(answers));
+        Preconditions.CheckAllWithinMagnitude(p90, nameof(answers));
         var f10 = Compute(p10, settings);
         var f50 = Compute(p50, settings);
         var f90 = Compute(p90, settings);

@@ -78,6 +78,11 @@ public sealed partial class Catalog(PanelRoundDbContext db, TimeProvider clock)
         {
             var o = inputs[i];
             var at = $"{fieldPrefix}[{i}]";
+            if (o is null)
+            {
+                errors.Add(at, "An observation is missing (null).");
+                continue;
+            }
             if (!Period.TryParse(o.Period, out var period))
             {
                 errors.Add($"{at}.period", $"'{o.Period}' is not a period: write a year such as 2024 or a quarter such as 2024Q3.");

@@ -147,19 +147,23 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
             ? []
             : (await db.RoundFeedback.AsNoTracking().Where(f => f.RoundId == previous.Id && !f.Withheld)
                     .Select(f => new { f.QuestionId, f.Period, f.StatisticsJson }).ToListAsync())
-                .ToDictionary(f => (f.QuestionId, f.Period), f => FeedbackView.FromJson(f.StatisticsJson).Headline);
+                .ToDictionary(f => (f.QuestionId, f.Period), f => FeedbackView.FromJson(f.StatisticsJson).Shown?.Spread);
         var (errors, warnings, rows) = Validate(panel, input, previousFeedback);
         if (errors.Any)
         {
             return Outcome<SubmissionReceipt>.Invalid(errors);
         }
-        var now = Now;
         await using var tx = await db.Database.BeginTransactionAsync();
-        var stillOpen = await db.Rounds.Where(r => r.Id == round.Id && r.State == RoundState.Open && r.ClosesAt > now)
+        var deadlineCheck = Now;
+        var stillOpen = await db.Rounds.Where(r => r.Id == round.Id && r.State == RoundState.Open && r.ClosesAt > deadlineCheck)
             .ExecuteUpdateAsync(u => u.SetProperty(r => r.Version, r => r.Version));
         var stillMember = await db.Memberships.Where(x => x.Id == m.Id && x.State != MembershipState.Revoked && x.TokenHash == m.TokenHash)
-            .ExecuteUpdateAsync(u => u.SetProperty(x => x.LastSeenAt, now)
+            .ExecuteUpdateAsync(u => u.SetProperty(x => x.LastSeenAt, deadlineCheck)
                 .SetProperty(x => x.State, x => x.State == MembershipState.Invited ? MembershipState.Active : x.State));
+        // Implementation note: the stored time is read only now, while this transaction holds the
+        // round row and the membership row, so the expert's revisions get their times in the same
+        // order as their ids: the revision that counts (the highest id) is the latest in time.
+        var now = Now;
         if (stillOpen == 0)
         {
             return Outcome<SubmissionReceipt>.Conflict($"Round {round.Number} closed; answers can no longer be changed.");
@@ -181,7 +185,7 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
     }
 
     private static (FieldErrors Errors, List<string> Warnings, List<Estimate> Rows) Validate(
-        Panel panel, SubmissionInput input, IReadOnlyDictionary<(int, string), StatsView?> previousFeedback)
+        Panel panel, SubmissionInput input, IReadOnlyDictionary<(int, string), AnonymousSpread?> previousFeedback)
     {
         var errors = new FieldErrors();
         var warnings = new List<string>();
@@ -297,10 +301,13 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
                     CheckBounds(errors, warnings, q, $"{pat}.value", period, p.Value, unit);
                     headline = p.Value;
                 }
-                if (headline is { } h && previousFeedback.TryGetValue((q.Id, period), out var stats) && stats is not null
-                    && (h < stats.RetainedMin || h > stats.RetainedMax))
+                // Implementation note: the test uses fences computed from the quartiles the expert
+                // was shown, never from an individual's answer (such as the lowest retained one), so
+                // that probing with submissions reveals nothing the feedback did not show.
+                if (headline is { } h && previousFeedback.TryGetValue((q.Id, period), out var spread) && spread is not null
+                    && UsualRange(spread) is var (low, high) && (h < low || h > high))
                 {
-                    needsRationale.Add(FormattableString.Invariant($"{period} ({h:0.##} is outside {stats.RetainedMin:0.##} to {stats.RetainedMax:0.##})"));
+                    needsRationale.Add(FormattableString.Invariant($"{period} ({h:0.##} is outside {low:0.##} to {high:0.##})"));
                 }
                 rows.Add(new Estimate
                 {
@@ -318,7 +325,7 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
                 if (needsRationale.Count > 0 && rationale is null)
                 {
                     errors.Add($"{at}.rationale", "Your answer for " + string.Join(", ", needsRationale)
-                        + " lies outside the range the group retained in the previous round: please give a rationale.");
+                        + " lies outside the group's usual range in the previous round (the quartiles widened by 1.5 times the interquartile range): please give a rationale.");
                 }
             }
         }
@@ -336,15 +343,22 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
         return (errors, warnings, rows);
     }
 
+    /// <summary>Tukey's fences on the shown quartiles: Q1 − 1.5·IQR to Q3 + 1.5·IQR.</summary>
+    public static (double Low, double High) UsualRange(AnonymousSpread spread)
+    {
+        var iqr = spread.Q3 - spread.Q1;
+        return (spread.Q1 - (1.5 * iqr), spread.Q3 + (1.5 * iqr));
+    }
+
     private static void CheckBounds(FieldErrors errors, List<string> warnings, Question q, string field, string label, double? value, string unit)
     {
         if (value is not { } v)
         {
             return;
         }
-        if (!double.IsFinite(v))
+        if (Numbers.LimitError(v) is { } limit)
         {
-            errors.Add(field, $"{label}: not a number.");
+            errors.Add(field, $"{label}: {limit}");
             return;
         }
         if (q.HardMin is { } min && v < min)

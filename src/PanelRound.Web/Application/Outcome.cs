@@ -46,7 +46,7 @@ public sealed class FieldErrors
         list.Add(message);
     }
 
-    /// <summary>Adds an error when <paramref name="text"/> is empty or longer than <paramref name="max"/>.</summary>
+    /// <summary>Adds an error when <paramref name="text"/> is empty, longer than <paramref name="max"/> or holds a control character.</summary>
     public string Required(string field, string? text, int max, string label)
     {
         if (string.IsNullOrWhiteSpace(text))
@@ -54,33 +54,67 @@ public sealed class FieldErrors
             Add(field, $"{label} is required.");
             return "";
         }
-        if (text.Trim().Length > max)
-        {
-            Add(field, $"{label} is at most {max} characters.");
-        }
-        return text.Trim();
+        return Checked(field, text, max, label);
     }
 
-    public string? Optional(string field, string? text, int max, string label)
+    /// <summary>Null for an empty text; otherwise as <see cref="Required"/>.</summary>
+    public string? Optional(string field, string? text, int max, string label) =>
+        string.IsNullOrWhiteSpace(text) ? null : Checked(field, text, max, label);
+
+    private string Checked(string field, string text, int max, string label)
     {
-        if (string.IsNullOrWhiteSpace(text))
-        {
-            return null;
-        }
-        if (text.Trim().Length > max)
+        var trimmed = text.Trim();
+        if (trimmed.Length > max)
         {
             Add(field, $"{label} is at most {max} characters.");
         }
-        return text.Trim();
+        if (TextRules.Problem(trimmed) is { } problem)
+        {
+            Add(field, $"{label} {problem}");
+        }
+        return trimmed;
     }
 
+    /// <summary>Adds an error when the number is not finite or beyond ±10¹² (<see cref="Core.Domain.Numbers"/>, the one limit for every number).</summary>
     public void Finite(string field, double? value, string label)
     {
-        if (value is { } v && !double.IsFinite(v))
+        if (value is { } v && Core.Domain.Numbers.LimitError(v) is { } error)
         {
-            Add(field, $"{label} must be a finite number.");
+            Add(field, $"{label} {error}");
         }
     }
 
     public Dictionary<string, string[]> ToDictionary() => _errors.ToDictionary(e => e.Key, e => e.Value.ToArray(), StringComparer.Ordinal);
+}
+
+/// <summary>What free text may hold: no control characters except tab and line breaks, and well-formed UTF-16.</summary>
+/// <remarks>
+/// Implementation note: PostgreSQL refuses U+0000 in text and every database refuses a lone
+/// surrogate; control characters also hide text from readers of a report. Refusing them in
+/// validation keeps bad input a 400 that names the field on both providers.
+/// </remarks>
+public static class TextRules
+{
+    /// <summary>Why the text cannot be stored, or null when it can.</summary>
+    public static string? Problem(string text)
+    {
+        for (var i = 0; i < text.Length; i++)
+        {
+            var c = text[i];
+            if (char.IsControl(c) && c is not ('\t' or '\n' or '\r'))
+            {
+                return FormattableString.Invariant($"contains a control character (U+{(int)c:X4}) at position {i + 1}.");
+            }
+            if (char.IsHighSurrogate(c) && i + 1 < text.Length && char.IsLowSurrogate(text[i + 1]))
+            {
+                i++;
+                continue;
+            }
+            if (char.IsSurrogate(c))
+            {
+                return FormattableString.Invariant($"contains an invalid character (a lone UTF-16 surrogate) at position {i + 1}.");
+            }
+        }
+        return null;
+    }
 }

@@ -500,7 +500,7 @@ public sealed class PanelWorkflow(PanelRoundDbContext db, TimeProvider clock, IM
     public async Task<Outcome<Round>> CloseRoundAsync(int panelId, int roundNumber, string actor)
     {
         db.ChangeTracker.Clear();
-        var panel = await db.Panels.AsNoTracking().Include(p => p.Questions).FirstOrDefaultAsync(p => p.Id == panelId);
+        var panel = await db.Panels.AsNoTracking().Include(p => p.Questions).Include(p => p.Memberships).FirstOrDefaultAsync(p => p.Id == panelId);
         var round = panel is null ? null : await db.Rounds.AsNoTracking().FirstOrDefaultAsync(r => r.PanelId == panelId && r.Number == roundNumber);
         if (panel is null || round is null)
         {
@@ -516,6 +516,11 @@ public sealed class PanelWorkflow(PanelRoundDbContext db, TimeProvider clock, IM
             return Outcome<Round>.Conflict($"Round {roundNumber} is closed already.");
         }
         var answers = await CountedAnswersAsync(db, round.Id);
+        if (OutOfDomain(panel, answers) is { } problem)
+        {
+            // The transaction is rolled back: the round stays open until the cause is removed.
+            return Outcome<Round>.Conflict($"Round {roundNumber} cannot close: {problem}");
+        }
         var settings = FeedbackCalculator.SettingsOf(panel.Settings);
         foreach (var q in panel.Questions)
         {
@@ -536,6 +541,24 @@ public sealed class PanelWorkflow(PanelRoundDbContext db, TimeProvider clock, IM
         await db.SaveChangesAsync();
         await tx.CommitAsync();
         return Outcome<Round>.Ok(await db.Rounds.AsNoTracking().SingleAsync(r => r.Id == round.Id));
+    }
+
+    /// <summary>
+    /// Names the answers that no statistic can take (beyond ±10¹², possible only in rows stored
+    /// before every input was limited), by panel code, so that the facilitator can act (revoking a
+    /// link removes its answers from an open round); null when every answer can be used.
+    /// </summary>
+    private static string? OutOfDomain(Panel panel, IReadOnlyList<CountedAnswer> answers)
+    {
+        var bad = answers.Where(a => new[] { a.Value, a.P10, a.P50, a.P90 }.Any(v => v is { } x && !Core.Domain.Numbers.InBounds(x))).ToList();
+        if (bad.Count == 0)
+        {
+            return null;
+        }
+        var codes = panel.Memberships.ToDictionary(m => m.Id, m => m.PanelCode);
+        var labels = panel.Questions.ToDictionary(q => q.Id, q => q.Label);
+        var list = bad.Take(5).Select(a => $"{(codes.TryGetValue(a.MembershipId, out var c) ? c : "an expert")} on \"{labels.GetValueOrDefault(a.QuestionId)}\" {a.Period}");
+        return $"{bad.Count} answer(s) lie beyond ±1e12, which no statistic can use ({string.Join("; ", list)}). Revoke or re-issue those links, or ask the experts to revise, then close again.";
     }
 
     /// <summary>Concludes the panel: publishes the consensus of its last closed round; read-only from then on.</summary>

@@ -57,22 +57,67 @@ public sealed class RoundDeadlineService(IServiceScopeFactory scopes, Microsoft.
             return 0;
         }
         var due = await db.Rounds.AsNoTracking().Where(r => r.State == RoundState.Open && r.ClosesAt <= now)
-            .Select(r => new { r.PanelId, r.Number }).ToListAsync(ct);
+            .Select(r => new { r.Id, r.PanelId, r.Number }).ToListAsync(ct);
         var workflow = scope.ServiceProvider.GetRequiredService<PanelWorkflow>();
         var closed = 0;
         foreach (var r in due)
         {
+            string? failure;
             try
             {
                 var outcome = await workflow.CloseRoundAsync(r.PanelId, r.Number, "system:deadline");
                 closed += outcome.IsOk ? 1 : 0;
+                // "Closed already" means another closer won: not a failure.
+                failure = outcome.IsOk || outcome.Message?.Contains("closed already", StringComparison.Ordinal) == true ? null : outcome.Message;
             }
             catch (Exception e) when (e is not OperationCanceledException)
             {
                 log.LogWarning(e, "Closing round {Round} of panel {Panel} at its deadline failed.", r.Number, r.PanelId);
+                failure = $"The round could not be closed ({e.GetType().Name}); the service tries again every {options.Value.DeadlineCheckSeconds} s.";
+            }
+            if (failure is not null)
+            {
+                await RecordFailureAsync(r.PanelId, r.Id, r.Number, failure, now, ct);
             }
         }
         return closed;
+    }
+
+    /// <summary>The audit action of a deadline close that failed; the panel page shows the latest one while the round is open.</summary>
+    public const string CloseFailedAction = "round.close-failed";
+
+    /// <summary>
+    /// Audits a failed close once per distinct reason (not on every tick), in a fresh unit of work
+    /// so that the failed one cannot take the audit entry down with it.
+    /// </summary>
+    private async Task RecordFailureAsync(int panelId, int roundId, int number, string reason, DateTime now, CancellationToken ct)
+    {
+        using var scope = scopes.CreateScope();
+        var db = scope.ServiceProvider.GetRequiredService<PanelRoundDbContext>();
+        var entityId = roundId.ToString(System.Globalization.CultureInfo.InvariantCulture);
+        var last = await db.AuditEvents.AsNoTracking()
+            .Where(a => a.Action == CloseFailedAction && a.EntityType == "Round" && a.EntityId == entityId)
+            .OrderByDescending(a => a.Id).Select(a => a.Details).FirstOrDefaultAsync(ct);
+        var details = new CloseFailure(number, reason);
+        if (last is not null && System.Text.Json.JsonSerializer.Deserialize<CloseFailure>(last) == details)
+        {
+            return;
+        }
+        Infrastructure.Audit.Record(db, "system:deadline", CloseFailedAction, "Round", roundId, panelId, details, now);
+        await db.SaveChangesAsync(ct);
+    }
+
+    /// <summary>The details of a <see cref="CloseFailedAction"/> audit event.</summary>
+    public sealed record CloseFailure(int Round, string Reason);
+
+    /// <summary>The latest failed deadline close of a panel's open round, or null.</summary>
+    public static async Task<(DateTime At, CloseFailure Failure)?> LatestFailureAsync(PanelRoundDbContext db, int panelId, int openRoundId)
+    {
+        var entityId = openRoundId.ToString(System.Globalization.CultureInfo.InvariantCulture);
+        var e = await db.AuditEvents.AsNoTracking()
+            .Where(a => a.PanelId == panelId && a.Action == CloseFailedAction && a.EntityId == entityId)
+            .OrderByDescending(a => a.Id).FirstOrDefaultAsync();
+        return e?.Details is { } d && System.Text.Json.JsonSerializer.Deserialize<CloseFailure>(d) is { } f ? (e.At, f) : null;
     }
 
     private async Task<bool> TryTakeLeaseAsync(PanelRoundDbContext db, DateTime now, CancellationToken ct)

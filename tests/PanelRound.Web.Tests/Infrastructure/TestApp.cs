@@ -33,13 +33,17 @@ public sealed class TestApp : WebApplicationFactory<Program>
         }
     }
 
+    /// <summary>The setting that chooses the host environment (default "Testing").</summary>
+    public const string EnvironmentSetting = "Test:Environment";
+
     public DatabaseProvider Provider { get; }
 
     public string ConnectionString { get; }
 
     protected override void ConfigureWebHost(IWebHostBuilder builder)
     {
-        builder.UseEnvironment("Testing");
+        // "Test:Environment" runs the app as Development or Production where a test is about the environment.
+        builder.UseEnvironment(_settings.TryGetValue(EnvironmentSetting, out var environment) && environment is { Length: > 0 } ? environment : "Testing");
         foreach (var (k, v) in _settings)
         {
             builder.UseSetting(k, v);

@@ -109,24 +109,24 @@ public abstract class PanelStoryTests(IDatabaseFixture fixture) : ProviderTests(
         {
             var expected = RoundFeedback.ForPoint(Enumerable.Range(0, 8).Select(e => PriceAnswer(e, j, 1)).ToList(), settings).GetFeedbackOrThrow();
             var shown = questions[0]!["periods"]![j]!["feedback"]!["stats"]!;
+            var spread = shown["spread"]!;
             Assert.Equal(expected.Median, (double)shown["median"]!, 9);
-            Assert.Equal(expected.Q1, (double)shown["q1"]!, 9);
-            Assert.Equal(expected.Q3, (double)shown["q3"]!, 9);
-            Assert.Equal(expected.TrimmedMedian, (double)shown["trimmedMedian"]!, 9);
-            Assert.Equal(expected.TrimmedMean, (double)shown["trimmedMean"]!, 9);
-            Assert.Equal(expected.RetainedMax, (double)shown["retainedMax"]!, 9);
-            var shape = shown["histogram"]!;
-            Assert.Equal(8, shape["counts"]!.AsArray().Sum(c => (int)c!) + (int)shape["below"]! + (int)shape["above"]!);
-            Assert.Equal(expected.ExcludedCount, (int)shape["below"]! + (int)shape["above"]!);
-            Assert.Equal(expected.RetainedMin, (double)shape["lower"]!, 9);
+            Assert.Equal(expected.Q1, (double)spread["q1"]!, 9);
+            Assert.Equal(expected.Q3, (double)spread["q3"]!, 9);
+            Assert.Equal(expected.TrimmedMedian, (double)spread["trimmedMedian"]!, 9);
+            // Experts see no mean and no extreme (the anonymity defect): neither the trimmed mean nor the retained range.
+            Assert.Null(spread["trimmedMean"]);
+            Assert.Null(spread["retainedMax"]);
+            var counts = spread["histogram"]!["counts"]!.AsArray().Select(c => (int)c!).ToList();
+            Assert.Equal(8, counts.Sum());
+            Assert.DoesNotContain(1, counts);
 
             var ranges = Enumerable.Range(0, 8).Select(e => RentAnswer(e, j, 1)).Select(r => new RangeAnswer(r.P10, r.P50, r.P90)).ToList();
             var expectedRange = RoundFeedback.ForRange(ranges, settings).GetFeedbackOrThrow();
-            var shownRange = questions[1]!["periods"]![j]!["feedback"]!;
-            Assert.Equal(expectedRange.AggregatedP10, (double)shownRange["aggregatedP10"]!, 9);
-            Assert.Equal(expectedRange.AggregatedP50, (double)shownRange["aggregatedP50"]!, 9);
-            Assert.Equal(expectedRange.AggregatedP90, (double)shownRange["aggregatedP90"]!, 9);
-            Assert.Equal(expectedRange.P50.Median, (double)shownRange["stats"]!["median"]!, 9);
+            var shownRange = questions[1]!["periods"]![j]!["feedback"]!["stats"]!;
+            Assert.Equal(Quantiles.Median(ranges.Select(r => r.P10).ToList()), (double)shownRange["spread"]!["bandP10"]!, 9);
+            Assert.Equal(Quantiles.Median(ranges.Select(r => r.P90).ToList()), (double)shownRange["spread"]!["bandP90"]!, 9);
+            Assert.Equal(expectedRange.P50.Median, (double)shownRange["median"]!, 9);
         }
         // The expert's own previous answer is shown; the group's rationales are unattributed text only.
         Assert.Equal(PriceAnswer(3, 0, 1), (double)questions[0]!["periods"]![0]!["previous"]!["value"]!);
@@ -142,11 +142,11 @@ public abstract class PanelStoryTests(IDatabaseFixture fixture) : ProviderTests(
             Assert.DoesNotContain($"expert{i}@panel.example", formJson, StringComparison.Ordinal);
             Assert.DoesNotContain($"Expert {i}", formJson, StringComparison.Ordinal);
         }
-        // No extreme individual answer is shown: no min or max, and the outlier (expert 7) is only counted above the retained range.
+        // No extreme individual answer is shown: no min or max, and the outlier (expert 7) is only counted in an open-ended bin.
         Assert.DoesNotContain("\"min\"", formJson, StringComparison.Ordinal);
         Assert.DoesNotContain("\"max\"", formJson, StringComparison.Ordinal);
         Assert.DoesNotContain(PriceAnswer(7, 0, 1).ToString(System.Globalization.CultureInfo.InvariantCulture), formJson, StringComparison.Ordinal);
-        Assert.Equal(1, (int)questions[0]!["periods"]![0]!["feedback"]!["stats"]!["histogram"]!["above"]!);
+        Assert.True((int)questions[0]!["periods"]![0]!["feedback"]!["stats"]!["spread"]!["histogram"]!["counts"]!.AsArray()[^1]! >= 2);
 
         // Round 2: six experts revise, two hold by not answering again; expert 1 revises twice.
         for (var i = 0; i < 6; i++)

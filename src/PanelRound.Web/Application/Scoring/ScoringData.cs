@@ -236,12 +236,12 @@ public static class Figures
 {
     public static double? Finite(double? value) => value is { } v && double.IsFinite(v) ? v : null;
 
-    /// <summary>The largest magnitude accepted for a forecast or an observation: |v| ≤ 10¹², far beyond any price, rent or rate, and small enough that squares and sums stay exact enough.</summary>
-    public const double MaxMagnitude = 1e12;
+    /// <summary>The largest magnitude accepted for any number (<see cref="Core.Domain.Numbers.MaxMagnitude"/>, one limit for every input).</summary>
+    public const double MaxMagnitude = Core.Domain.Numbers.MaxMagnitude;
 
     /// <summary>True when the value is finite and within <see cref="MaxMagnitude"/>.</summary>
-    public static bool InBounds(double value) => double.IsFinite(value) && Math.Abs(value) <= MaxMagnitude;
+    public static bool InBounds(double value) => Core.Domain.Numbers.InBounds(value);
 
     /// <summary>The message for a value out of bounds.</summary>
-    public const string OutOfBoundsMessage = "is larger in magnitude than 1e12 (10^12); check the unit and the decimal separator.";
+    public const string OutOfBoundsMessage = Core.Domain.Numbers.OutOfBoundsMessage;
 }

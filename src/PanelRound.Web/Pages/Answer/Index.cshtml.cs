@@ -1,5 +1,7 @@
+using System.Globalization;
 using Microsoft.AspNetCore.Mvc;
 using Microsoft.AspNetCore.Mvc.RazorPages;
+using PanelRound.Core.Domain;
 using PanelRound.Data;
 using PanelRound.Web.Application;
 using PanelRound.Web.Infrastructure;
@@ -9,17 +11,18 @@ namespace PanelRound.Web.Pages.Answer;
 /// <summary>The expert's page behind the personal link's cookie: the brief, the questions, feedback and the answer form.</summary>
 public class IndexModel(PanelRoundDbContext db, ExpertAnswers answers) : PageModel
 {
+    /// <summary>One period's inputs as typed: numbers are read by <see cref="Numbers.TryParseEntry"/> with the chosen separator, never by the server's culture.</summary>
     public sealed class PeriodForm
     {
         public string? Period { get; set; }
 
-        public double? Value { get; set; }
+        public string? Value { get; set; }
 
-        public double? P10 { get; set; }
+        public string? P10 { get; set; }
 
-        public double? P50 { get; set; }
+        public string? P50 { get; set; }
 
-        public double? P90 { get; set; }
+        public string? P90 { get; set; }
     }
 
     public sealed class AnswerForm
@@ -35,6 +38,12 @@ public class IndexModel(PanelRoundDbContext db, ExpertAnswers answers) : PageMod
 
     [BindProperty]
     public List<AnswerForm> Answers { get; set; } = [];
+
+    /// <summary>The decimal separator the expert types numbers with ("point" or "comma"); by default from the browser's language.</summary>
+    [BindProperty(SupportsGet = true)]
+    public string? Decimals { get; set; }
+
+    public DecimalSeparator Separator => Decimals == "comma" ? DecimalSeparator.Comma : DecimalSeparator.Point;
 
     public ExpertForm Form { get; private set; } = null!;
 
@@ -60,7 +69,26 @@ public class IndexModel(PanelRoundDbContext db, ExpertAnswers answers) : PageMod
         }
         Form = await answers.GetFormAsync(m.Id);
         Warnings = SavedWarnings is { Length: > 0 } w ? w.Split('\n') : [];
+        Decimals = Decimals is "comma" or "point" ? Decimals : DefaultSeparator(Request.Headers.AcceptLanguage.ToString());
         return Page();
+    }
+
+    /// <summary>"comma" when the browser's first language writes decimals with a comma (e.g. de, fr, es), else "point".</summary>
+    public static string DefaultSeparator(string? acceptLanguage)
+    {
+        var first = (acceptLanguage ?? "").Split(',', StringSplitOptions.TrimEntries | StringSplitOptions.RemoveEmptyEntries).FirstOrDefault()?.Split(';')[0];
+        if (string.IsNullOrWhiteSpace(first))
+        {
+            return "point";
+        }
+        try
+        {
+            return CultureInfo.GetCultureInfo(first).NumberFormat.NumberDecimalSeparator == "," ? "comma" : "point";
+        }
+        catch (CultureNotFoundException)
+        {
+            return "point";
+        }
     }
 
     public async Task<IActionResult> OnPostAsync(string action)
@@ -70,22 +98,25 @@ public class IndexModel(PanelRoundDbContext db, ExpertAnswers answers) : PageMod
         {
             return RedirectToPage("LinkNeeded");
         }
+        Decimals = Decimals is "comma" or "point" ? Decimals : DefaultSeparator(Request.Headers.AcceptLanguage.ToString());
         var draft = action == "draft";
         foreach (var (key, entry) in ModelState.Where(kv => kv.Value?.Errors.Count > 0))
         {
-            Errors[key] = entry!.Errors.Select(e => "Not a number.").ToArray();
+            Errors[key] = entry!.Errors.Select(e => "Not a valid choice.").ToArray();
         }
+        var input = new SubmissionInput(draft, Answers.Select((a, qi) => new QuestionAnswerInput(a.QuestionId, a.Confidence, a.Rationale,
+            a.Periods.Select((p, pi) => new PeriodAnswerInput(p.Period,
+                Read(p.Value, $"answers[{qi}].periods[{pi}].value"), Read(p.P10, $"answers[{qi}].periods[{pi}].p10"),
+                Read(p.P50, $"answers[{qi}].periods[{pi}].p50"), Read(p.P90, $"answers[{qi}].periods[{pi}].p90"))).ToList())).ToList());
         if (Errors.Count == 0)
         {
-            var input = new SubmissionInput(draft, Answers.Select(a => new QuestionAnswerInput(a.QuestionId, a.Confidence, a.Rationale,
-                a.Periods.Select(p => new PeriodAnswerInput(p.Period, p.Value, p.P10, p.P50, p.P90)).ToList())).ToList());
             var outcome = await answers.SubmitAsync(m.Id, input);
             if (outcome.IsOk)
             {
                 var r = outcome.Value!;
                 Saved = draft ? $"Draft saved ({r.Saved} values). It does not count until you submit." : $"Submitted for round {r.Round}: {r.Saved} values. You can revise until the round closes; the latest submission counts.";
                 SavedWarnings = string.Join('\n', r.Warnings);
-                return RedirectToPage();
+                return RedirectToPage(new { decimals = Decimals });
             }
             foreach (var (k, v) in outcome.Errors)
             {
@@ -99,13 +130,66 @@ public class IndexModel(PanelRoundDbContext db, ExpertAnswers answers) : PageMod
 
     public string? ErrorFor(string key) => Errors.TryGetValue(key, out var e) ? string.Join(" ", e) : null;
 
-    /// <summary>The value the form shows: what was posted (after an error), else the current answer, else last round's own.</summary>
-    public double? Shown(int qi, int pi, ExpertPeriod p, Func<AnswerValues, double?> pick, Func<PeriodForm, double?> posted)
+    /// <summary>Reads one typed number; an unreadable one is an error beside its field and nothing is saved.</summary>
+    private double? Read(string? text, string field)
+    {
+        if (string.IsNullOrWhiteSpace(text))
+        {
+            return null;
+        }
+        var reading = Numbers.TryParseEntry(text, Separator);
+        if (reading.IsValid)
+        {
+            return reading.Value;
+        }
+        Errors[field] = [reading.Error!];
+        return null;
+    }
+
+    /// <summary>The text the form shows: what was posted (after an error), else the current answer, else last round's own.</summary>
+    public string Shown(int qi, int pi, ExpertPeriod p, Func<AnswerValues, double?> pick, Func<PeriodForm, string?> posted)
     {
         if (Answers.Count > qi && Answers[qi].Periods.Count > pi)
         {
-            return posted(Answers[qi].Periods[pi]);
+            return posted(Answers[qi].Periods[pi]) ?? "";
         }
-        return p.Current is { } c ? pick(c) : p.Previous is { } prev ? pick(prev) : null;
+        var value = p.Current is { } c ? pick(c) : p.Previous is { } prev ? pick(prev) : null;
+        return Typed(value);
+    }
+
+    /// <summary>
+    /// The anonymous histogram as bars: the open-ended outer bins are drawn as wide as their inner
+    /// neighbour and left out when empty (every edge comes from the shown quartiles).
+    /// </summary>
+    public static IReadOnlyList<(double Lower, double Upper, int Count)> Bars(Core.Statistics.AnonymousHistogram histogram)
+    {
+        var e = histogram.Edges;
+        var c = histogram.Counts;
+        if (e.Count == 0)
+        {
+            // One bin holding every answer says nothing the quartiles do not.
+            return [];
+        }
+        var width = e.Count > 1 ? e[1] - e[0] : Math.Max(Math.Abs(e[0]) * 0.1, 1);
+        var lastWidth = e.Count > 1 ? e[^1] - e[^2] : width;
+        var bars = new List<(double, double, int)>();
+        for (var i = 0; i < c.Count; i++)
+        {
+            var lower = i == 0 ? e[0] - width : e[i - 1];
+            var upper = i == c.Count - 1 ? e[^1] + lastWidth : e[i];
+            if ((i == 0 || i == c.Count - 1) && c[i] == 0)
+            {
+                continue;
+            }
+            bars.Add((lower, upper, c[i]));
+        }
+        return bars;
+    }
+
+    /// <summary>A number as the expert types it: full precision, no grouping, with their decimal separator.</summary>
+    public string Typed(double? value)
+    {
+        var text = PageSupport.Raw(value);
+        return Separator == DecimalSeparator.Comma ? text.Replace('.', ',') : text;
     }
 }

@@ -34,6 +34,9 @@ public class DetailsModel(PanelRoundDbContext db, PanelWorkflow workflow) : Page
     [BindProperty]
     public DateTime? ClosesAt { get; set; }
 
+    /// <summary>The latest failed deadline close of the open round, shown until the round closes.</summary>
+    public (DateTime At, RoundDeadlineService.CloseFailure Failure)? CloseFailure { get; private set; }
+
     public Round? OpenRound => Panel.Rounds.FirstOrDefault(r => r.State == RoundState.Open);
 
     public async Task<IActionResult> OnGetAsync()
@@ -52,6 +55,7 @@ public class DetailsModel(PanelRoundDbContext db, PanelWorkflow workflow) : Page
         {
             var answered = await db.Estimates.AsNoTracking().Where(e => e.RoundId == open.Id && !e.IsDraft).Select(e => e.MembershipId).Distinct().ToListAsync();
             Responded = panel.Memberships.ToDictionary(m => m.Id, m => answered.Contains(m.Id));
+            CloseFailure = await RoundDeadlineService.LatestFailureAsync(db, panel.Id, open.Id);
         }
         ClosesAt ??= DateTime.UtcNow.Date.AddDays(15).AddHours(17);
         return Page();
