@@ -24,6 +24,7 @@ public static class WebSetup
         {
             o.Conventions.AuthorizeFolder("/Staff", AuthSetup.StaffPolicy);
             o.Conventions.AuthorizeFolder("/Admin", AuthSetup.AdministratorPolicy);
+            o.Conventions.RequireWritePolicies("/Staff", "/Admin");
         });
         services.AddOptions<DemoOptions>().BindConfiguration(DemoOptions.Section).ValidateOnStart();
         services.AddOptions<MailOptions>().BindConfiguration(MailOptions.Section).ValidateOnStart();

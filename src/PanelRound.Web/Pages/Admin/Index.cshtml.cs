@@ -8,6 +8,7 @@ using PanelRound.Web.Infrastructure;
 namespace PanelRound.Web.Pages.Admin;
 
 /// <summary>Administration: API keys (created here or with the create-api-key command) and the audit log.</summary>
+[WritePolicy(AuthSetup.AdministratorPolicy)]
 public class IndexModel(PanelRoundDbContext db) : PageModel
 {
     public IReadOnlyList<ApiKey> Keys { get; private set; } = [];

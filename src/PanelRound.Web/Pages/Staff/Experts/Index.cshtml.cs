@@ -11,6 +11,7 @@ namespace PanelRound.Web.Pages.Staff.Experts;
 
 /// <summary>The roster: the one staff view with experts' names next to their panels.</summary>
 [Authorize(Policy = AuthSetup.FacilitatorPolicy)]
+[WritePolicy(AuthSetup.FacilitatorPolicy)]
 public class IndexModel(PanelRoundDbContext db, Catalog catalog) : PageModel
 {
     public sealed class ExpertForm

@@ -9,6 +9,7 @@ using PanelRound.Web.Infrastructure;
 namespace PanelRound.Web.Pages.Staff.Imports;
 
 [Authorize(Policy = AuthSetup.FacilitatorPolicy)]
+[WritePolicy(AuthSetup.FacilitatorPolicy)]
 public class IndexModel(PastPanelImport import, IOptions<ScoringOptions> options) : PageModel
 {
     /// <summary>The publication lag assumed for observations without observed_on.</summary>

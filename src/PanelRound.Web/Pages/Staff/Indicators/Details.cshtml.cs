@@ -10,6 +10,7 @@ using PanelRound.Web.Infrastructure;
 namespace PanelRound.Web.Pages.Staff.Indicators;
 
 /// <summary>An indicator's observations: chart, table, correction history, and entry by form, paste or CSV upload.</summary>
+[WritePolicy(AuthSetup.FacilitatorPolicy)]
 public class DetailsModel(PanelRoundDbContext db, Catalog catalog) : PageModel
 {
     [BindProperty(SupportsGet = true)]

@@ -8,6 +8,7 @@ using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Pages.Staff.Indicators;
 
+[WritePolicy(AuthSetup.FacilitatorPolicy)]
 public class IndexModel(PanelRoundDbContext db, Catalog catalog) : PageModel
 {
     public sealed class IndicatorForm

@@ -15,6 +15,7 @@ namespace PanelRound.Web.Pages.Staff.Outcomes;
 public sealed record OutcomeLine(Indicator Indicator, string Period, int Panels, Observation? Current, IReadOnlyList<Observation> Earlier);
 
 [Authorize(Policy = AuthSetup.ReviewerPolicy)]
+[WritePolicy(AuthSetup.ReviewerPolicy)]
 public class IndexModel(PanelRoundDbContext db, OutcomeRecorder recorder, ScoringService scoring) : PageModel
 {
     public sealed class OutcomeForm

@@ -7,6 +7,7 @@ using PanelRound.Web.Infrastructure;
 namespace PanelRound.Web.Pages.Staff.Panels;
 
 [Authorize(Policy = AuthSetup.FacilitatorPolicy)]
+[WritePolicy(AuthSetup.FacilitatorPolicy)]
 public class CreateModel(PanelWorkflow workflow) : PageModel
 {
     [BindProperty]

@@ -12,6 +12,7 @@ namespace PanelRound.Web.Pages.Staff.Panels;
 
 /// <summary>The facilitator's panel page: questions, roster and links, rounds with the response tracker, conclusion.</summary>
 [Authorize(Policy = AuthSetup.FacilitatorPolicy)]
+[WritePolicy(AuthSetup.FacilitatorPolicy)]
 public class DetailsModel(PanelRoundDbContext db, PanelWorkflow workflow) : PageModel
 {
     [BindProperty(SupportsGet = true)]

@@ -9,6 +9,7 @@ using PanelRound.Web.Infrastructure;
 namespace PanelRound.Web.Pages.Staff.Panels;
 
 [Authorize(Policy = AuthSetup.FacilitatorPolicy)]
+[WritePolicy(AuthSetup.FacilitatorPolicy)]
 public class EditModel(PanelRoundDbContext db, PanelWorkflow workflow) : PageModel
 {
     [BindProperty(SupportsGet = true)]

@@ -10,6 +10,7 @@ using PanelRound.Web.Infrastructure;
 namespace PanelRound.Web.Pages.Staff.Panels;
 
 [Authorize(Policy = AuthSetup.FacilitatorPolicy)]
+[WritePolicy(AuthSetup.FacilitatorPolicy)]
 public class QuestionModel(PanelRoundDbContext db, PanelWorkflow workflow) : PageModel
 {
     public sealed class QuestionForm
