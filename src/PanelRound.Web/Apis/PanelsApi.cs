@@ -39,7 +39,7 @@ public static class PanelsApi
         f.MapPost("/{id:int}/rounds", OpenRound).WithName("OpenRound").WithSummary("Opens the next round with a deadline (UTC).");
         f.MapPost("/{id:int}/rounds/{number:int}/close", CloseRound).WithName("CloseRound").WithSummary("Closes a round and freezes its feedback.");
         f.MapGet("/{id:int}/rounds/{number:int}/tracker", GetTracker).WithName("GetTracker").WithSummary("Who has answered, by panel code.");
-        f.MapPost("/{id:int}/reminders", SendReminders).WithName("SendReminders").WithSummary("Reminds the members who have not answered the open round.");
+        f.MapPost("/{id:int}/reminders", SendReminders).WithName("SendReminders").WithSummary("Reminds the members who have not answered the open round; answers how many were sent and how many failed.");
         f.MapPost("/{id:int}/conclude", Conclude).WithName("ConcludePanel").WithSummary("Publishes the consensus of the last closed round; the panel is read-only from then on.");
         return app;
     }
@@ -153,7 +153,7 @@ public static class PanelsApi
             members.Where(m => !responded.Contains(m.Id)).Select(m => m.PanelCode).Order(StringComparer.Ordinal).ToList()));
     }
 
-    public static async Task<Results<Ok<int>, ValidationProblem, ProblemHttpResult>> SendReminders(
+    public static async Task<Results<Ok<MailReport>, ValidationProblem, ProblemHttpResult>> SendReminders(
         int id, PanelWorkflow workflow, ClaimsPrincipal user) =>
         (await workflow.SendRemindersAsync(id, Audit.ActorOf(user))).ToOk(n => n);
 

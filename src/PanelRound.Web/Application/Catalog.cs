@@ -1,4 +1,3 @@
-using System.Globalization;
 using System.Text.RegularExpressions;
 using Microsoft.EntityFrameworkCore;
 using PanelRound.Core.Domain;
@@ -150,24 +149,22 @@ public sealed partial class Catalog(PanelRoundDbContext db, TimeProvider clock)
         return Outcome<ObservationImportResult>.Ok(new ObservationImportResult(added, corrected, unchanged));
     }
 
-    /// <summary>Reads observation rows from CSV text (columns <c>period</c>, <c>value</c>, optional <c>source</c>, <c>observed_on</c>).</summary>
+    /// <summary>
+    /// Reads observation rows from CSV (columns <c>period</c>, <c>value</c>, optional <c>source</c>,
+    /// <c>observed_on</c>) as the other imports do: strict RFC 4180 UTF-8 and one number rule
+    /// (<see cref="OutcomeRecorder.ParseNumber"/>); errors are keyed by row (<c>row 3</c>).
+    /// </summary>
     public static Outcome<IReadOnlyList<ObservationInput>> ParseObservationCsv(Stream csv)
     {
         var errors = new FieldErrors();
-        IReadOnlyList<CsvRow> rows;
-        IReadOnlyList<string> headers;
-        try
+        var table = OutcomeRecorder.ReadCsv(csv, errors);
+        if (table is null)
         {
-            (headers, rows) = CsvFiles.Read(csv);
-        }
-        catch (Exception e) when (e is FormatException or InvalidDataException or InvalidOperationException)
-        {
-            errors.Add("file", "The file is not readable as CSV: " + e.Message);
             return Outcome<IReadOnlyList<ObservationInput>>.Invalid(errors);
         }
         foreach (var required in new[] { "period", "value" })
         {
-            if (!headers.Contains(required))
+            if (!table.Headers.Contains(required))
             {
                 errors.Add("file", $"The header row has no '{required}' column (needed: period, value; optional: source, observed_on).");
             }
@@ -177,31 +174,17 @@ public sealed partial class Catalog(PanelRoundDbContext db, TimeProvider clock)
             return Outcome<IReadOnlyList<ObservationInput>>.Invalid(errors);
         }
         var list = new List<ObservationInput>();
-        foreach (var r in rows)
+        foreach (var r in table.Rows)
         {
-            double? value = null;
-            if (r["value"] is { } v)
+            var value = OutcomeRecorder.ParseNumber(r["value"], out var badValue);
+            if (badValue is not null)
             {
-                if (double.TryParse(v, NumberStyles.Float, CultureInfo.InvariantCulture, out var d))
-                {
-                    value = d;
-                }
-                else
-                {
-                    errors.Add($"row {r.Row}", $"Row {r.Row}: value '{v}' is not a number (use a dot for decimals).");
-                }
+                errors.Add(OutcomeRecorder.CsvRowKey(null, r.Row), $"Row {r.Row} (line {r.Line}): value {badValue}");
             }
-            DateOnly? observedOn = null;
-            if (r["observed_on"] is { } on)
+            var observedOn = OutcomeRecorder.ParseDate(r["observed_on"], out var badDate);
+            if (badDate)
             {
-                if (DateOnly.TryParseExact(on, "yyyy-MM-dd", CultureInfo.InvariantCulture, DateTimeStyles.None, out var date))
-                {
-                    observedOn = date;
-                }
-                else
-                {
-                    errors.Add($"row {r.Row}", $"Row {r.Row}: observed_on '{on}' is not a date (yyyy-MM-dd).");
-                }
+                errors.Add(OutcomeRecorder.CsvRowKey(null, r.Row), $"Row {r.Row} (line {r.Line}): observed_on '{r["observed_on"]}' is not a date (yyyy-MM-dd).");
             }
             list.Add(new ObservationInput(r["period"], value, r["source"], observedOn));
         }
@@ -213,9 +196,9 @@ public sealed partial class Catalog(PanelRoundDbContext db, TimeProvider clock)
         var errors = new FieldErrors();
         var name = errors.Required("name", input.Name, 200, "Name");
         var email = errors.Required("email", input.Email, 256, "Email").ToLowerInvariant();
-        if (email.Length > 0 && !EmailPattern().IsMatch(email))
+        if (email.Length > 0 && !MailAddresses.IsValid(email))
         {
-            errors.Add("email", "Email is not an email address.");
+            errors.Add("email", "Email is not an address mail can be sent to (one address such as name@firm.example; no spaces, no doubled, leading or trailing dots).");
         }
         if (email.Length > 0 && await db.Experts.AnyAsync(e => e.Email == email))
         {
@@ -284,7 +267,4 @@ public sealed partial class Catalog(PanelRoundDbContext db, TimeProvider clock)
 
     [GeneratedRegex("^[a-z0-9][a-z0-9-]*$")]
     private static partial Regex KeyPattern();
-
-    [GeneratedRegex(@"^[^@\s]+@[^@\s]+\.[^@\s]+$")]
-    private static partial Regex EmailPattern();
 }

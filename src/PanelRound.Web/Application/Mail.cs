@@ -1,3 +1,4 @@
+using System.Text.RegularExpressions;
 using MailKit.Net.Smtp;
 using MailKit.Security;
 using Microsoft.Extensions.Options;
@@ -6,6 +7,44 @@ using MimeKit;
 namespace PanelRound.Web.Application;
 
 public sealed record MailMessageData(string ToAddress, string ToName, string Subject, string Body);
+
+/// <summary>How many messages of a batch (reminders) were sent, and how many failed (each audited).</summary>
+public sealed record MailReport(int Sent, int Failed);
+
+/// <summary>
+/// Email addresses as the mailer reads them, so that the roster accepts exactly the addresses that
+/// mail can be sent to.
+/// </summary>
+public static partial class MailAddresses
+{
+    private static readonly ParserOptions Strict = new()
+    {
+        AddressParserComplianceMode = RfcComplianceMode.Strict,
+        AllowAddressesWithoutDomain = false,
+        AllowUnquotedCommasInAddresses = false,
+    };
+
+    /// <summary>
+    /// The mailbox the mailer sends to, or null when the text is not one plain address: it has the
+    /// shape <c>local@domain.tld</c> (no spaces, one @) and MimeKit parses it, with strict options, as
+    /// a single mailbox whose address is the text itself (no display name, no list).
+    /// </summary>
+    public static MailboxAddress? ToMailbox(string? address, string? name = null)
+    {
+        if (address is null || !SimpleShape().IsMatch(address)
+            || !MailboxAddress.TryParse(Strict, address, out var mailbox) || !string.Equals(mailbox.Address, address, StringComparison.Ordinal))
+        {
+            return null;
+        }
+        mailbox.Name = name;
+        return mailbox;
+    }
+
+    public static bool IsValid(string? address) => ToMailbox(address) is not null;
+
+    [GeneratedRegex(@"^[^@\s]+@[^@\s]+\.[^@\s]+$")]
+    private static partial Regex SimpleShape();
+}
 
 /// <summary>Sends the panel's messages (invitations with personal links, reminders).</summary>
 public interface IMailer
@@ -37,14 +76,18 @@ public sealed class MailOptions
 }
 
 /// <summary>MailKit over SMTP when configured, otherwise .eml files in the outbox folder.</summary>
-public sealed class Mailer(IOptions<MailOptions> options, IWebHostEnvironment env, ILogger<Mailer> log) : IMailer
+public sealed class Mailer(IOptions<MailOptions> options, IWebHostEnvironment env, IHostApplicationLifetime lifetime, ILogger<Mailer> log) : IMailer
 {
+    /// <summary>Sends one message; a send still running when the host shuts down is cancelled.</summary>
     public async Task SendAsync(MailMessageData message, CancellationToken ct = default)
     {
+        using var stopping = CancellationTokenSource.CreateLinkedTokenSource(ct, lifetime.ApplicationStopping);
+        ct = stopping.Token;
         var o = options.Value;
         var mime = new MimeMessage();
         mime.From.Add(MailboxAddress.Parse(o.From));
-        mime.To.Add(new MailboxAddress(message.ToName, message.ToAddress));
+        mime.To.Add(MailAddresses.ToMailbox(message.ToAddress, message.ToName)
+            ?? throw new ArgumentException("The recipient's address is not one the mailer can parse (a single address such as name@firm.example).", nameof(message)));
         mime.Subject = message.Subject;
         mime.Body = new TextPart("plain") { Text = message.Body };
         if (string.IsNullOrWhiteSpace(o.SmtpHost))

@@ -289,7 +289,10 @@ public sealed class PanelWorkflow(PanelRoundDbContext db, TimeProvider clock, IM
         return Outcome<bool>.Ok(true);
     }
 
-    /// <summary>Adds an expert of the roster to the panel with a random panel code and a new personal link.</summary>
+    /// <summary>
+    /// Adds an expert of the roster to the panel with a random panel code and a new personal link. The
+    /// link is returned (to be shown once) whether or not the invitation could be sent.
+    /// </summary>
     public async Task<Outcome<IssuedLink>> AddMemberAsync(int panelId, int expertId, string actor, string baseUrl, bool sendInvitation = true)
     {
         var panel = await db.Panels.FirstOrDefaultAsync(p => p.Id == panelId);
@@ -325,13 +328,13 @@ public sealed class PanelWorkflow(PanelRoundDbContext db, TimeProvider clock, IM
         var link = new IssuedLink(membership.Id, membership.PanelCode, token, "/e/" + token);
         if (sendInvitation)
         {
-            await TrySendAsync(panelId, membership.Id, new MailMessageData(expert.Email, expert.Name, $"Invitation: {panel.Title}",
+            await TrySendAsync(actor, panelId, membership.Id, "invitation", new MailMessageData(expert.Email, expert.Name, $"Invitation: {panel.Title}",
                 $"Dear {expert.Name},\n\nyou are invited to the expert panel \"{panel.Title}\". Your personal link (do not forward it):\n\n{baseUrl.TrimEnd('/')}{link.Path}\n\nYour answers are anonymous to the other experts.\n"));
         }
         return Outcome<IssuedLink>.Ok(link);
     }
 
-    /// <summary>Issues a new token for a membership; the old link stops working at once.</summary>
+    /// <summary>Issues a new token for a membership; the old link stops working at once. The link is returned whether or not its message could be sent.</summary>
     public async Task<Outcome<IssuedLink>> ReissueLinkAsync(int panelId, int membershipId, string actor, string baseUrl, bool sendInvitation = true)
     {
         var m = await db.Memberships.Include(x => x.Expert).Include(x => x.Panel).FirstOrDefaultAsync(x => x.Id == membershipId && x.PanelId == panelId);
@@ -354,7 +357,7 @@ public sealed class PanelWorkflow(PanelRoundDbContext db, TimeProvider clock, IM
         var link = new IssuedLink(m.Id, m.PanelCode, token, "/e/" + token);
         if (sendInvitation)
         {
-            await TrySendAsync(panelId, m.Id, new MailMessageData(m.Expert!.Email, m.Expert.Name, $"Your new link: {m.Panel.Title}",
+            await TrySendAsync(actor, panelId, m.Id, "new-link", new MailMessageData(m.Expert!.Email, m.Expert.Name, $"Your new link: {m.Panel.Title}",
                 $"Dear {m.Expert.Name},\n\nhere is your new personal link to \"{m.Panel.Title}\"; the previous one no longer works:\n\n{baseUrl.TrimEnd('/')}{link.Path}\n"));
         }
         return Outcome<IssuedLink>.Ok(link);
@@ -380,53 +383,61 @@ public sealed class PanelWorkflow(PanelRoundDbContext db, TimeProvider clock, IM
         return Outcome<bool>.Ok(true);
     }
 
-    /// <summary>Sends a reminder to the active members who have not submitted in the open round.</summary>
-    public async Task<Outcome<int>> SendRemindersAsync(int panelId, string actor)
+    /// <summary>
+    /// Sends a reminder to each active member who has not submitted in the open round; a failed send
+    /// does not stop the others. Every send is audited (<c>mail.sent</c> or <c>mail.failed</c>), and
+    /// the batch as <c>reminders.sent</c>.
+    /// </summary>
+    public async Task<Outcome<MailReport>> SendRemindersAsync(int panelId, string actor)
     {
         var panel = await db.Panels.Include(p => p.Rounds).FirstOrDefaultAsync(p => p.Id == panelId);
         var round = panel?.Rounds.FirstOrDefault(r => r.State == RoundState.Open);
         if (panel is null)
         {
-            return Outcome<int>.NotFound($"Panel {panelId} does not exist.");
+            return Outcome<MailReport>.NotFound($"Panel {panelId} does not exist.");
         }
         if (round is null)
         {
-            return Outcome<int>.Conflict("No round is open.");
+            return Outcome<MailReport>.Conflict("No round is open.");
         }
         var answered = await db.Estimates.Where(e => e.RoundId == round.Id && !e.IsDraft).Select(e => e.MembershipId).Distinct().ToListAsync();
         var pending = await db.Memberships.Include(m => m.Expert)
-            .Where(m => m.PanelId == panelId && m.State != MembershipState.Revoked && !answered.Contains(m.Id)).ToListAsync();
-        var failed = 0;
+            .Where(m => m.PanelId == panelId && m.State != MembershipState.Revoked && !answered.Contains(m.Id)).OrderBy(m => m.Id).ToListAsync();
+        int sent = 0, failed = 0;
         foreach (var m in pending)
         {
-            failed += await TrySendAsync(panelId, m.Id, new MailMessageData(m.Expert!.Email, m.Expert.Name, $"Reminder: round {round.Number} of {panel.Title}",
-                $"Dear {m.Expert.Name},\n\nround {round.Number} of \"{panel.Title}\" closes on {round.ClosesAt:yyyy-MM-dd HH:mm} UTC and we have not received your answers yet. Please use the personal link you were sent; ask the facilitator for a new one if you cannot find it.\n")) ? 0 : 1;
+            var ok = await TrySendAsync(actor, panelId, m.Id, "reminder", new MailMessageData(m.Expert!.Email, m.Expert.Name, $"Reminder: round {round.Number} of {panel.Title}",
+                $"Dear {m.Expert.Name},\n\nround {round.Number} of \"{panel.Title}\" closes on {round.ClosesAt:yyyy-MM-dd HH:mm} UTC and we have not received your answers yet. Please use the personal link you were sent; ask the facilitator for a new one if you cannot find it.\n"));
+            (sent, failed) = ok ? (sent + 1, failed) : (sent, failed + 1);
         }
-        Log(actor, "reminders.sent", "Round", round.Id, panelId, new { round.Number, count = pending.Count - failed, failed });
+        Log(actor, "reminders.sent", "Round", round.Id, panelId, new { round.Number, count = sent, failed });
         await db.SaveChangesAsync();
-        return Outcome<int>.Ok(pending.Count - failed);
+        return Outcome<MailReport>.Ok(new MailReport(sent, failed));
     }
 
     /// <summary>
-    /// Sends a message; a mail failure never loses the operation (the link is still shown once to
-    /// the facilitator): it is logged and audited as <c>mail.failed</c>.
+    /// Sends a message and audits the send at once, in its own save: <c>mail.sent</c>, or
+    /// <c>mail.failed</c> with the error. A mail failure of any kind (an address the mailer cannot
+    /// parse, a refusing relay, a full disk, a time-out) never fails the operation, so a new link is
+    /// still shown once to the facilitator. Only a cancellation that was asked for (the mailer stops
+    /// sending when the host shuts down) is passed on.
     /// </summary>
-    private async Task<bool> TrySendAsync(int panelId, int membershipId, MailMessageData message)
+    private async Task<bool> TrySendAsync(string actor, int panelId, int membershipId, string kind, MailMessageData message)
     {
+        string? error = null;
         try
         {
             await mailer.SendAsync(message);
-            return true;
         }
-        catch (Exception e) when (e is IOException or MailKit.ServiceNotConnectedException or MailKit.ProtocolException
-            or MailKit.Net.Smtp.SmtpCommandException or MailKit.Security.AuthenticationException or System.Net.Sockets.SocketException
-            or UnauthorizedAccessException or OperationCanceledException)
+        catch (Exception e) when (e is not OperationCanceledException { CancellationToken.IsCancellationRequested: true })
         {
-            log.LogWarning(e, "Mail to membership {MembershipId} failed.", membershipId);
-            Log("system:mail", "mail.failed", "Membership", membershipId, panelId, new { message.Subject, error = e.Message });
-            await db.SaveChangesAsync();
-            return false;
+            log.LogWarning(e, "Mail ({Kind}) to membership {MembershipId} failed.", kind, membershipId);
+            error = e.Message;
         }
+        Log(actor, error is null ? "mail.sent" : "mail.failed", "Membership", membershipId, panelId,
+            error is null ? (object)new { kind, message.Subject } : new { kind, message.Subject, error });
+        await db.SaveChangesAsync();
+        return error is null;
     }
 
     /// <summary>Opens the next round with a deadline; the first opening ends the draft.</summary>

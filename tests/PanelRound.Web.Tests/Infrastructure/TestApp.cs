@@ -1,6 +1,7 @@
 using System.Net.Http.Headers;
 using Microsoft.AspNetCore.Hosting;
 using Microsoft.AspNetCore.Mvc.Testing;
+using Microsoft.AspNetCore.TestHost;
 using Microsoft.Extensions.DependencyInjection;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
@@ -13,8 +14,12 @@ public sealed class TestApp : WebApplicationFactory<Program>
 {
     private readonly Dictionary<string, string?> _settings;
 
-    public TestApp(DatabaseProvider provider, string connectionString, IDictionary<string, string?>? extra = null)
+    private readonly Action<IServiceCollection>? _testServices;
+
+    /// <summary>The app on a database, with extra settings and, optionally, services that replace the app's own (e.g. a mailer that fails).</summary>
+    public TestApp(DatabaseProvider provider, string connectionString, IDictionary<string, string?>? extra = null, Action<IServiceCollection>? testServices = null)
     {
+        _testServices = testServices;
         Provider = provider;
         ConnectionString = connectionString;
         _settings = new Dictionary<string, string?>
@@ -47,6 +52,10 @@ public sealed class TestApp : WebApplicationFactory<Program>
         foreach (var (k, v) in _settings)
         {
             builder.UseSetting(k, v);
+        }
+        if (_testServices is not null)
+        {
+            builder.ConfigureTestServices(_testServices);
         }
     }
 

@@ -1,4 +1,5 @@
 using System.Globalization;
+using System.Text.RegularExpressions;
 using Microsoft.EntityFrameworkCore;
 using PanelRound.Core.Domain;
 using PanelRound.Data;
@@ -17,7 +18,7 @@ public sealed record OutcomeInput(string? Indicator, string? Period, double? Val
 /// became known (<c>observedOn</c>) lies between the period's end and today; values are within
 /// ±10¹² (<see cref="Figures.MaxMagnitude"/>).
 /// </summary>
-public sealed class OutcomeRecorder(PanelRoundDbContext db, Catalog catalog, TimeProvider clock)
+public sealed partial class OutcomeRecorder(PanelRoundDbContext db, Catalog catalog, TimeProvider clock)
 {
     /// <summary>Records one outcome from the form; errors are keyed by field (indicator, period, value, source, observedOn).</summary>
     public Task<Outcome<ObservationImportResult>> RecordAsync(OutcomeInput input, string actor) =>
@@ -27,20 +28,19 @@ public sealed class OutcomeRecorder(PanelRoundDbContext db, Catalog catalog, Tim
     public async Task<Outcome<ObservationImportResult>> ImportCsvAsync(Stream csv, string actor)
     {
         var errors = new FieldErrors();
-        var read = ReadCsv(csv, "file", errors);
-        if (read is null)
+        var table = ReadCsv(csv, errors);
+        if (table is null)
         {
             return Outcome<ObservationImportResult>.Invalid(errors);
         }
-        var (headers, rows) = read.Value;
         foreach (var required in new[] { "indicator", "period", "value" })
         {
-            if (!headers.Contains(required))
+            if (!table.Headers.Contains(required))
             {
                 errors.Add("file", $"The header row has no '{required}' column (needed: indicator, period, value; optional: source, observed_on).");
             }
         }
-        if (rows.Count == 0)
+        if (table.Rows.Count == 0)
         {
             errors.Add("file", "The file has no data rows.");
         }
@@ -50,17 +50,17 @@ public sealed class OutcomeRecorder(PanelRoundDbContext db, Catalog catalog, Tim
         }
         var inputs = new List<OutcomeInput>();
         var rowNumbers = new List<int>();
-        foreach (var r in rows)
+        foreach (var r in table.Rows)
         {
-            var value = ParseNumber(r["value"], out var bad);
-            if (bad)
+            var value = ParseNumber(r["value"], out var badValue);
+            if (badValue is not null)
             {
-                errors.Add($"row {r.Row}", $"Row {r.Row}: value '{r["value"]}' is not a number (use a dot for decimals).");
+                errors.Add(CsvRowKey(null, r.Row), $"Row {r.Row} (line {r.Line}): value {badValue}");
             }
             var observedOn = ParseDate(r["observed_on"], out var badDate);
             if (badDate)
             {
-                errors.Add($"row {r.Row}", $"Row {r.Row}: observed_on '{r["observed_on"]}' is not a date (yyyy-MM-dd).");
+                errors.Add(CsvRowKey(null, r.Row), $"Row {r.Row} (line {r.Line}): observed_on '{r["observed_on"]}' is not a date (yyyy-MM-dd).");
             }
             inputs.Add(new OutcomeInput(r["indicator"], r["period"], value, r["source"], observedOn));
             rowNumbers.Add(r.Row);
@@ -69,7 +69,7 @@ public sealed class OutcomeRecorder(PanelRoundDbContext db, Catalog catalog, Tim
         {
             return Outcome<ObservationImportResult>.Invalid(errors);
         }
-        return await RecordAsync(inputs, actor, (i, _) => $"row {rowNumbers[i]}");
+        return await RecordAsync(inputs, actor, (i, _) => CsvRowKey(null, rowNumbers[i]));
     }
 
     private async Task<Outcome<ObservationImportResult>> RecordAsync(IReadOnlyList<OutcomeInput> inputs, string actor, Func<int, string, string> keyOf)
@@ -156,34 +156,64 @@ public sealed class OutcomeRecorder(PanelRoundDbContext db, Catalog catalog, Tim
         return Outcome<ObservationImportResult>.Ok(new ObservationImportResult(added, corrected, unchanged));
     }
 
-    internal static (IReadOnlyList<string> Headers, IReadOnlyList<CsvRow> Rows)? ReadCsv(Stream csv, string key, FieldErrors errors)
+    /// <summary>
+    /// Reads an uploaded CSV file for an import (<see cref="CsvFiles.Read(Stream)"/>: strict RFC 4180
+    /// UTF-8). When it cannot be read, adds every error (keyed like the imports' row errors: <c>row 3</c>,
+    /// or <c>forecasts row 3</c> for a named file; the file's own key for the header) and returns null.
+    /// </summary>
+    /// <param name="csv">The uploaded file.</param>
+    /// <param name="errors">Where the file's errors go.</param>
+    /// <param name="file">The upload's field name (<c>forecasts</c>), or null for an import of one file (keyed <c>file</c>).</param>
+    internal static CsvTable? ReadCsv(Stream csv, FieldErrors errors, string? file = null)
     {
-        try
+        var table = CsvFiles.Read(csv);
+        foreach (var e in table.Errors)
         {
-            return CsvFiles.Read(csv);
+            errors.Add(e.Row == 0 ? file ?? "file" : CsvRowKey(file, e.Row), e.Message);
         }
-        catch (Exception e) when (e is FormatException or InvalidDataException or InvalidOperationException or ArgumentException
-            || e.GetType().Namespace?.StartsWith("CsvHelper", StringComparison.Ordinal) == true)
-        {
-            errors.Add(key, "The file is not readable as CSV: " + e.Message);
-            return null;
-        }
+        return table.IsValid ? table : null;
     }
 
-    internal static double? ParseNumber(string? text, out bool bad)
+    /// <summary>The error key of a row of an uploaded CSV file: <c>row 3</c>, or <c>forecasts row 3</c> for a named file.</summary>
+    internal static string CsvRowKey(string? file, int row) => file is null ? $"row {row}" : $"{file} row {row}";
+
+    /// <summary>
+    /// Reads a number of a CSV file by one rule: invariant culture, an optional sign, digits with an
+    /// optional dot and decimals, an optional exponent (<c>e</c> or <c>E</c>, optional sign, digits); no
+    /// thousands separators, no NaN or infinity. The magnitude is at most
+    /// <see cref="Figures.MaxMagnitude"/>, and a number whose digits are not all zero may not underflow
+    /// to zero or to a subnormal double (below 2.2e-308 in magnitude), which would store another value.
+    /// </summary>
+    /// <returns>The value; null when the field is empty (no error) or wrong (then <paramref name="error"/> says why, to follow the column's name).</returns>
+    public static double? ParseNumber(string? text, out string? error)
     {
-        bad = false;
+        error = null;
         if (text is null)
         {
             return null;
         }
-        if (double.TryParse(text, NumberStyles.Float, CultureInfo.InvariantCulture, out var d) && double.IsFinite(d))
+        var match = NumberPattern().Match(text);
+        if (!match.Success || !double.TryParse(text, NumberStyles.AllowLeadingSign | NumberStyles.AllowDecimalPoint | NumberStyles.AllowExponent,
+            CultureInfo.InvariantCulture, out var d))
         {
-            return d;
+            error = $"'{text}' is not a number: write digits with a dot for decimals and no thousands separators, e.g. 1234.5 or 1.2e6.";
+            return null;
         }
-        bad = true;
-        return null;
+        if (!Figures.InBounds(d))
+        {
+            error = $"'{text}' {Figures.OutOfBoundsMessage}";
+            return null;
+        }
+        if ((d == 0 || double.IsSubnormal(d)) && match.Groups["mantissa"].Value.Any(c => c is >= '1' and <= '9'))
+        {
+            error = $"'{text}' is too small to store (not zero, but below 2.2e-308 in magnitude); check the exponent.";
+            return null;
+        }
+        return d;
     }
+
+    [GeneratedRegex(@"^[+-]?(?<mantissa>[0-9]+(?:\.[0-9]*)?|\.[0-9]+)(?:[eE][+-]?[0-9]+)?$", RegexOptions.CultureInvariant)]
+    private static partial Regex NumberPattern();
 
     internal static DateOnly? ParseDate(string? text, out bool bad)
     {

@@ -85,12 +85,23 @@ public class DetailsModel(PanelRoundDbContext db, Catalog catalog) : PageModel
     private static string RowLabel(string key) =>
         int.TryParse(key.AsSpan(4, key.IndexOf(']', StringComparison.Ordinal) - 4), out var i) ? $"Row {i + 1}" : key;
 
-    /// <summary>Pasted rows may come without a header: add one when the first line does not name the columns.</summary>
+    private static readonly string[] PastedColumns = ["period", "value", "source"];
+
+    /// <summary>
+    /// Pasted rows may come without a header: add one when the first line does not name the columns,
+    /// with as many of period, value and source as that line has fields (the reader wants every row
+    /// to have the header's number of fields).
+    /// </summary>
     private static string WithHeader(string text)
     {
         var first = text.TrimStart().Split('\n')[0].ToLowerInvariant();
         var sep = text.Contains('\t', StringComparison.Ordinal) ? "\t" : ",";
         var normalised = sep == "\t" ? text.Replace('\t', ',') : text;
-        return first.Contains("period", StringComparison.Ordinal) ? normalised : "period,value,source\n" + normalised;
+        if (first.Contains("period", StringComparison.Ordinal))
+        {
+            return normalised;
+        }
+        var fields = first.TrimEnd('\r').Split(sep[0]).Length;
+        return string.Join(',', PastedColumns.Take(Math.Clamp(fields, 2, 3))) + "\n" + normalised;
     }
 }

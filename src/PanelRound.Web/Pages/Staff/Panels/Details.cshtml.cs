@@ -83,7 +83,9 @@ public class DetailsModel(PanelRoundDbContext db, PanelWorkflow workflow) : Page
     public async Task<IActionResult> OnPostRemindAsync()
     {
         var outcome = await workflow.SendRemindersAsync(Id, Audit.ActorOf(User));
-        return await Done(outcome, $"Reminders sent: {outcome.Value}.");
+        return await Done(outcome, outcome.Value is { Failed: > 0 } r
+            ? $"Reminders sent: {r.Sent}; {r.Failed} could not be sent (recorded in the audit log as mail.failed)."
+            : $"Reminders sent: {outcome.Value?.Sent}.");
     }
 
     public async Task<IActionResult> OnPostConcludeAsync() =>
