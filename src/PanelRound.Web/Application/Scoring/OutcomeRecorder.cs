@@ -1,5 +1,4 @@
 using System.Globalization;
-using System.Text.RegularExpressions;
 using Microsoft.EntityFrameworkCore;
 using PanelRound.Core.Domain;
 using PanelRound.Data;
@@ -18,7 +17,7 @@ public sealed record OutcomeInput(string? Indicator, string? Period, double? Val
 /// became known (<c>observedOn</c>) lies between the period's end and today; values are within
 /// ±10¹² (<see cref="Figures.MaxMagnitude"/>).
 /// </summary>
-public sealed partial class OutcomeRecorder(PanelRoundDbContext db, Catalog catalog, TimeProvider clock)
+public sealed class OutcomeRecorder(PanelRoundDbContext db, Catalog catalog, TimeProvider clock)
 {
     /// <summary>Records one outcome from the form; errors are keyed by field (indicator, period, value, source, observedOn).</summary>
     public Task<Outcome<ObservationImportResult>> RecordAsync(OutcomeInput input, string actor) =>
@@ -178,7 +177,7 @@ public sealed partial class OutcomeRecorder(PanelRoundDbContext db, Catalog cata
     internal static string CsvRowKey(string? file, int row) => file is null ? $"row {row}" : $"{file} row {row}";
 
     /// <summary>
-    /// Reads a number of a CSV file by one rule: invariant culture, an optional sign, digits with an
+    /// Reads a number of a CSV file by the one rule for machine-written numbers (<see cref="Core.Domain.Numbers.TryParseInvariant"/>): invariant culture, an optional sign, digits with an
     /// optional dot and decimals, an optional exponent (<c>e</c> or <c>E</c>, optional sign, digits); no
     /// thousands separators, no NaN or infinity. The magnitude is at most
     /// <see cref="Figures.MaxMagnitude"/>, and a number whose digits are not all zero may not underflow
@@ -192,28 +191,10 @@ public sealed partial class OutcomeRecorder(PanelRoundDbContext db, Catalog cata
         {
             return null;
         }
-        var match = NumberPattern().Match(text);
-        if (!match.Success || !double.TryParse(text, NumberStyles.AllowLeadingSign | NumberStyles.AllowDecimalPoint | NumberStyles.AllowExponent,
-            CultureInfo.InvariantCulture, out var d))
-        {
-            error = $"'{text}' is not a number: write digits with a dot for decimals and no thousands separators, e.g. 1234.5 or 1.2e6.";
-            return null;
-        }
-        if (!Figures.InBounds(d))
-        {
-            error = $"'{text}' {Figures.OutOfBoundsMessage}";
-            return null;
-        }
-        if ((d == 0 || double.IsSubnormal(d)) && match.Groups["mantissa"].Value.Any(c => c is >= '1' and <= '9'))
-        {
-            error = $"'{text}' is too small to store (not zero, but below 2.2e-308 in magnitude); check the exponent.";
-            return null;
-        }
-        return d;
+        var reading = Core.Domain.Numbers.TryParseInvariant(text);
+        error = reading.Error;
+        return reading.IsValid ? reading.Value : null;
     }
-
-    [GeneratedRegex(@"^[+-]?(?<mantissa>[0-9]+(?:\.[0-9]*)?|\.[0-9]+)(?:[eE][+-]?[0-9]+)?$", RegexOptions.CultureInvariant)]
-    private static partial Regex NumberPattern();
 
     internal static DateOnly? ParseDate(string? text, out bool bad)
     {
