@@ -1,6 +1,8 @@
 using System.Globalization;
 using System.Text.Json;
 using System.Text.Json.Serialization;
+using System.Text.RegularExpressions;
+using PanelRound.Core.Domain;
 using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Demo;
@@ -41,8 +43,9 @@ public sealed record DemoPanel(string Key, string Title, string Brief, DateOnly 
 /// <summary>
 /// The demo scenario as files: CSV for the tables a firm would recognise (indicators,
 /// observations, experts, estimates), JSON for the panels' structure and the demo staff.
+/// The scenario is written for the day <c>AnchorDate</c> and agrees with that day's clock.
 /// </summary>
-public sealed record DemoScenario(
+public sealed partial record DemoScenario(
     DateOnly AnchorDate,
     IReadOnlyList<DemoStaff> Staff,
     IReadOnlyList<DemoIndicator> Indicators,
@@ -91,6 +94,57 @@ public sealed record DemoScenario(
                 DateTime.Parse(r["submitted_at"]!, CultureInfo.InvariantCulture, DateTimeStyles.AdjustToUniversal | DateTimeStyles.AssumeUniversal))).ToList();
         return new DemoScenario(structure.AnchorDate, structure.Staff, indicators, observations, experts, structure.Panels, estimates);
     }
+
+    /// <summary>The scenario moved to the day it is loaded on, so that it agrees with that day's clock.</summary>
+    /// <remarks>
+    /// <para>Implementation note (shift, not filter): the files agree with the clock of
+    /// <see cref="AnchorDate"/>: every observation is of a period that had ended and was known by
+    /// then, every closed round had closed, the open round was open. Loaded on another day, the
+    /// whole scenario moves by the whole number of years nearest to the distance (periods, dates,
+    /// and the years named in titles, briefs and indicator texts), and then the running panel alone
+    /// moves by the days that remain (at most half a year either way) so that its open round is
+    /// open today. Filtering out what lies in the future instead would leave a running panel about
+    /// years long past when loaded late, and drop outcomes the scorecard needs when loaded early.</para>
+    /// <para>This holds on any day as long as the files keep half a year of margin on each side of
+    /// the anchor: past panels concluded and the last observation known more than half a year
+    /// before it, the running panel started more than half a year after the last observed period
+    /// ended, and its first target period ending more than half a year after the anchor.</para>
+    /// </remarks>
+    public DemoScenario AsOf(DateTime utcNow)
+    {
+        var today = DateOnly.FromDateTime(utcNow);
+        var years = (int)Math.Round((today.DayNumber - AnchorDate.DayNumber) / 365.2425, MidpointRounding.AwayFromZero);
+        var days = today.DayNumber - AnchorDate.AddYears(years).DayNumber;
+        var running = Panels.Where(p => !p.Concluded).Select(p => p.Key).ToHashSet(StringComparer.Ordinal);
+        string Text(string text) => years == 0 ? text
+            : YearInText().Replace(text, m => (int.Parse(m.Value, CultureInfo.InvariantCulture) + years).ToString(CultureInfo.InvariantCulture));
+        string Moved(string period)
+        {
+            var p = Period.Parse(period);
+            return (p.IsYear ? Period.OfYear(p.Year + years) : Period.OfQuarter(p.Year + years, p.Quarter)).ToString();
+        }
+        DateTime At(DateTime t, string panel) => t.AddYears(years).AddDays(running.Contains(panel) ? days : 0);
+        return this with
+        {
+            AnchorDate = today,
+            Indicators = [.. Indicators.Select(i => i with { Name = Text(i.Name), Description = Text(i.Description) })],
+            Observations = [.. Observations.Select(o => o with { Period = Moved(o.Period) })],
+            Panels = [.. Panels.Select(p => p with
+            {
+                Title = Text(p.Title),
+                Brief = Text(p.Brief),
+                StartsOn = p.StartsOn.AddYears(years).AddDays(running.Contains(p.Key) ? days : 0),
+                TargetPeriods = string.Join(",", p.TargetPeriods.Split(',').Select(Moved)),
+                Questions = [.. p.Questions.Select(q => q with { Label = Text(q.Label), Help = Text(q.Help) })],
+                Rounds = [.. p.Rounds.Select(r => r with { OpensAt = At(r.OpensAt, p.Key), ClosesAt = At(r.ClosesAt, p.Key) })],
+            })],
+            Estimates = [.. Estimates.Select(e => e with { Period = Moved(e.Period), Rationale = Text(e.Rationale), SubmittedAt = At(e.SubmittedAt, e.Panel) })],
+        };
+    }
+
+    /// <summary>A year written in text, e.g. the 2027 of "outlook 2027-2031" or "(2015 = 100)".</summary>
+    [GeneratedRegex(@"\b(19|20)\d{2}\b")]
+    private static partial Regex YearInText();
 
     private static string F(double v) => v.ToString("R", CultureInfo.InvariantCulture);
 

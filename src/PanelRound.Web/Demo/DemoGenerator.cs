@@ -12,6 +12,10 @@ namespace PanelRound.Web.Demo;
 /// relative to their real uncertainty, and how far they move toward the group in later rounds),
 /// and their forecasts of past panels are drawn around the realised observations, so the
 /// scorecard has something true to find. Everything here is invented.
+/// <para>The scenario is written as of <see cref="Anchor"/> and agrees with that day's clock: the
+/// last observation is of the year before (known on 15 February, well before the anchor), every
+/// past panel asks only about years observed, and the open round's answers arrived before the
+/// anchor. The loader moves it to the day it is loaded on (<see cref="DemoScenario.AsOf"/>).</para>
 /// </remarks>
 public static class DemoGenerator
 {
@@ -22,8 +26,16 @@ public static class DemoGenerator
     private sealed record Trait(string Key, string Name, string Affiliation, string Expertise, string Interests, string Profile,
         double Bias, double Noise, double Width, double Herding);
 
+    /// <summary>The day the scenario is written for.</summary>
+    public static readonly DateOnly Anchor = new(2026, 12, 2);
+
     private const int FirstYear = 2012;
-    private const int LastObservedYear = 2026;
+
+    /// <summary>The last year with an observation: the last year that has ended on <see cref="Anchor"/>.</summary>
+    private const int LastObservedYear = 2025;
+
+    /// <summary>The last year of each series' invented path (the open panel's last target year).</summary>
+    private const int LastPathYear = 2031;
     private const double Z90 = 1.2815515655446004; // standard normal quantile at 0.9
 
     private static readonly Series[] AllSeries =
@@ -74,8 +86,8 @@ public static class DemoGenerator
             [new DateOnly(2019, 9, 2), new DateOnly(2019, 9, 23)]),
         new("calderport-2021", "Market outlook 2022-2024, Calderport", new DateOnly(2021, 9, 1), 2022, 3, [1, 2, 3, 4, 5, 6, 8, 9, 10, 11, 12], 3, true,
             [new DateOnly(2021, 9, 1), new DateOnly(2021, 9, 20), new DateOnly(2021, 10, 11)]),
-        new("calderport-2023", "Market outlook 2024-2026, Calderport", new DateOnly(2023, 9, 4), 2024, 3, [1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12, 13, 14], 2, true,
-            [new DateOnly(2023, 9, 4), new DateOnly(2023, 9, 25)]),
+        new("calderport-2022", "Market outlook 2023-2025, Calderport", new DateOnly(2022, 9, 5), 2023, 3, [1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12, 13, 14], 2, true,
+            [new DateOnly(2022, 9, 5), new DateOnly(2022, 9, 26)]),
         new("calderport-2027", "Residential and office outlook 2027-2031, Calderport", new DateOnly(2026, 11, 2), 2027, 5, [1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12], 2, false,
             [new DateOnly(2026, 11, 2), new DateOnly(2026, 11, 23)]),
     ];
@@ -116,7 +128,7 @@ public static class DemoGenerator
         foreach (var s in AllSeries)
         {
             var values = Path(s, rng);
-            for (var y = FirstYear; y <= LastObservedYear + 5; y++)
+            for (var y = FirstYear; y <= LastPathYear; y++)
             {
                 truth[(s.Key, y)] = values[y - FirstYear];
                 if (y <= LastObservedYear)
@@ -180,7 +192,9 @@ public static class DemoGenerator
                             var stated = Z90 * m.Noise * Math.Sqrt(horizon) * scale * m.Width;
                             var last = truth[(s.Key, plan.StartsOn.Year - 1)];
                             var rationale = rng.NextDouble() < 0.6 ? Reason(rng, v, last) : "";
-                            var at = round.OpensAt.AddHours(2 + rng.Next(0, 24 * 10));
+                            // Answers arrive over ten days; in the open round, before the anchor day.
+                            var hours = round.Closed ? 24 * 10 : (int)(Anchor.ToDateTime(TimeOnly.MinValue, DateTimeKind.Utc) - round.OpensAt).TotalHours - 3;
+                            var at = round.OpensAt.AddHours(2 + rng.Next(0, hours));
                             estimates.Add(range
                                 ? new DemoEstimate(plan.Key, r, m.Key, s.Key, t.ToString(CultureInfo.InvariantCulture), null,
                                     Round(v - stated, s.Decimals + 1), v, Round(v + stated, s.Decimals + 1), m.Width < 0.5 ? 5 : 2 + rng.Next(0, 4), rationale, at)
@@ -200,14 +214,14 @@ public static class DemoGenerator
             new("reviewer@calderport-demo.example", "Robert Achterberg (demo director)", "Reviewer", "Demo-Reviewer-2026"),
             new("admin@calderport-demo.example", "Amira Castell (demo administrator)", "Administrator", "Demo-Admin-2026!"),
         ];
-        return new DemoScenario(new DateOnly(2026, 12, 2), staff, indicators, observations, experts, panels, estimates);
+        return new DemoScenario(Anchor, staff, indicators, observations, experts, panels, estimates);
     }
 
     private static bool IsRange(Series s) => s.Key.StartsWith("office-", StringComparison.Ordinal);
 
     private static double[] Path(Series s, Random rng)
     {
-        var n = LastObservedYear - FirstYear + 1 + 5;
+        var n = LastPathYear - FirstYear + 1;
         var values = new double[n];
         values[0] = s.Start;
         for (var i = 1; i < n; i++)

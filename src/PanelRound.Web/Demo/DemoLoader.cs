@@ -9,7 +9,8 @@ namespace PanelRound.Web.Demo;
 
 /// <summary>
 /// Loads the demo scenario from demo-data/ into an empty database, through the same round
-/// closing and publishing code the app uses, and prints the demo sign-ins.
+/// closing and publishing code the app uses, and prints the demo sign-ins. The scenario is first
+/// moved to the app's today (<see cref="DemoScenario.AsOf"/>), so that it agrees with the clock.
 /// </summary>
 public sealed class DemoLoader(PanelRoundDbContext db, UserManager<StaffUser> users, IServiceProvider services, ILogger<DemoLoader> log, TimeProvider clock)
 {
@@ -27,13 +28,16 @@ public sealed class DemoLoader(PanelRoundDbContext db, UserManager<StaffUser> us
         return true;
     }
 
-    public async Task LoadAsync(DemoScenario scenario)
+    /// <summary>Loads the scenario as of the app's today (shifted, not filtered; see <see cref="DemoScenario.AsOf"/>).</summary>
+    public async Task LoadAsync(DemoScenario written)
     {
         var now = clock.GetUtcNow().UtcDateTime;
+        var today = DateOnly.FromDateTime(now);
+        var scenario = written.AsOf(now);
         await StaffAccounts.EnsureRolesAsync(services);
         foreach (var s in scenario.Staff)
         {
-            var created = await StaffAccounts.CreateAsync(users, s.Email, s.Name, s.Password, [s.Role]);
+            var created = await StaffAccounts.CreateAsync(users, s.Email, s.Name, s.Password, [s.Role], now);
             if (!created.Succeeded)
             {
                 throw new InvalidOperationException("Demo staff account failed: " + string.Join(" ", created.Errors.Select(e => e.Description)));
@@ -48,10 +52,17 @@ public sealed class DemoLoader(PanelRoundDbContext db, UserManager<StaffUser> us
         foreach (var o in scenario.Observations)
         {
             var period = Period.Parse(o.Period);
+            // The observatory publishes a period's figure about six weeks after it ends (15 February for a year).
+            var observedOn = period.EndDate.AddDays(46);
+            if (observedOn > today)
+            {
+                throw new InvalidOperationException(
+                    $"Demo: {o.Indicator} {o.Period} would be known on {observedOn:yyyy-MM-dd}, after today ({today:yyyy-MM-dd}); the demo files lost their margin around their anchor date.");
+            }
             indicators[o.Indicator].Observations.Add(new Observation
             {
                 Period = period.ToString(), PeriodSortKey = period.SortKey, Value = o.Value, Source = o.Source,
-                ObservedOn = new DateOnly(period.Year + 1, 2, 15), RecordedAt = now, RecordedBy = "demo",
+                ObservedOn = observedOn, RecordedAt = now, RecordedBy = "demo",
             });
         }
         var experts = scenario.Experts.ToDictionary(e => e.Key, e => new Expert
@@ -62,12 +73,8 @@ public sealed class DemoLoader(PanelRoundDbContext db, UserManager<StaffUser> us
         db.Experts.AddRange(experts.Values);
         await db.SaveChangesAsync();
 
-        // The open panel's dates move with the day the demo is loaded, so its open round is open.
-        var today = DateOnly.FromDateTime(now);
-        var shift = Math.Max(0, today.DayNumber - scenario.AnchorDate.DayNumber);
         foreach (var p in scenario.Panels)
         {
-            var offset = TimeSpan.FromDays(p.Concluded ? 0 : shift);
             var panel = new Panel
             {
                 Title = p.Title, Brief = p.Brief, StartsOn = p.StartsOn, TargetPeriods = p.TargetPeriods,
@@ -97,7 +104,7 @@ public sealed class DemoLoader(PanelRoundDbContext db, UserManager<StaffUser> us
             }
             foreach (var r in p.Rounds)
             {
-                panel.Rounds.Add(new Round { Number = r.Number, State = RoundState.Open, OpensAt = r.OpensAt + offset, ClosesAt = r.ClosesAt + offset });
+                panel.Rounds.Add(new Round { Number = r.Number, State = RoundState.Open, OpensAt = r.OpensAt, ClosesAt = r.ClosesAt });
             }
             db.Panels.Add(panel);
             await db.SaveChangesAsync();
@@ -110,14 +117,14 @@ public sealed class DemoLoader(PanelRoundDbContext db, UserManager<StaffUser> us
                 {
                     RoundId = roundByNumber[e.Round].Id, MembershipId = members[e.Expert].Id, QuestionId = questionByIndicator[e.Indicator].Id,
                     Period = e.Period, Value = e.Value, P10 = e.P10, P50 = e.P50, P90 = e.P90, Confidence = e.Confidence,
-                    Rationale = string.IsNullOrEmpty(e.Rationale) ? null : e.Rationale, CreatedAt = e.SubmittedAt + offset,
+                    Rationale = string.IsNullOrEmpty(e.Rationale) ? null : e.Rationale, CreatedAt = e.SubmittedAt,
                 });
             }
             Audit.Record(db, "demo", "panel.created", "Panel", panel.Id, panel.Id, new { panel.Title }, panel.CreatedAt);
             await db.SaveChangesAsync();
             await DemoHooks.CompleteAsync(services, panel, p);
         }
-        Audit.Record(db, "demo", "demo.loaded", "Database", "demo", details: new { panels = scenario.Panels.Count, estimates = scenario.Estimates.Count });
+        Audit.Record(db, "demo", "demo.loaded", "Database", "demo", details: new { panels = scenario.Panels.Count, estimates = scenario.Estimates.Count }, at: now);
         await db.SaveChangesAsync();
     }
 
@@ -131,7 +138,7 @@ public sealed class DemoLoader(PanelRoundDbContext db, UserManager<StaffUser> us
         {
             return;
         }
-        var scenario = DemoScenario.Read(folder);
+        var scenario = DemoScenario.Read(folder).AsOf(services.GetRequiredService<TimeProvider>().GetUtcNow().UtcDateTime);
         Console.WriteLine();
         Console.WriteLine("Demo staff sign-ins (demo only; never use these passwords elsewhere):");
         foreach (var s in scenario.Staff)

@@ -34,10 +34,15 @@ public static class AuthSetup
                 o.Password.RequireLowercase = false;
                 o.Password.RequireDigit = false;
                 o.User.RequireUniqueEmail = true;
-                o.Lockout.MaxFailedAccessAttempts = 8;
+                // No lock-out: a stranger who knows the address could lock its owner out. Failures are slowed instead (StaffSignIn).
+                o.Lockout.AllowedForNewUsers = false;
             })
             .AddEntityFrameworkStores<PanelRoundDbContext>()
             .AddDefaultTokenProviders();
+        services.AddOptions<StaffSignInOptions>().BindConfiguration(StaffSignInOptions.Section)
+            .Validate(o => o.IsValid(), "StaffSignIn: FreeFailures >= 0, 0 <= FirstDelay <= MaxDelay <= 1 minute, Window > 0.")
+            .ValidateOnStart();
+        services.AddSingleton<SignInThrottle>();
 
         services.ConfigureApplicationCookie(o =>
         {

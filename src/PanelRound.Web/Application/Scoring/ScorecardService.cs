@@ -120,7 +120,8 @@ public sealed class ScorecardService(
                 new ScoredExpert(e.Id, ScoringService.ExpertKeyOf(e.Id), ScoringService.ExpertKeyOf(e.ExternalKey, e.Email), e.Name), null, []);
         }
         var own = data.ExpertItems.Where(i => i.ExpertKey == expert.Key).ToList();
-        var score = Scorecard.ForExperts(own, ScorecardOptions.Default).SingleOrDefault();
+        // The rank is a place among all experts: score everyone, as the unfiltered scorecard does, and take this expert's line.
+        var score = Scorecard.ForExperts(data.ExpertItems, ScorecardOptions.Default).SingleOrDefault(s => s.ExpertKey == expert.Key);
         var points = own.Select(i =>
         {
             var panel = data.Panels[i.PanelKey];

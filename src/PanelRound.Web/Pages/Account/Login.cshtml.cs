@@ -3,6 +3,7 @@ using Microsoft.AspNetCore.Identity;
 using Microsoft.AspNetCore.Mvc;
 using Microsoft.AspNetCore.Mvc.RazorPages;
 using PanelRound.Data.Entities;
+using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Pages.Account;
 
@@ -27,18 +28,17 @@ public class LoginModel(SignInManager<StaffUser> signIn) : PageModel
     {
     }
 
-    public async Task<IActionResult> OnPostAsync()
+    public async Task<IActionResult> OnPostAsync([FromServices] SignInThrottle throttle)
     {
         if (!ModelState.IsValid)
         {
             return Page();
         }
-        var result = await signIn.PasswordSignInAsync(Input.Email, Input.Password, isPersistent: false, lockoutOnFailure: true);
-        if (result.Succeeded)
+        if (await signIn.SignInStaffAsync(throttle, Input.Email, Input.Password, HttpContext.RequestAborted))
         {
             return LocalRedirect(Url.IsLocalUrl(ReturnUrl) ? ReturnUrl : "/Staff/Panels");
         }
-        ModelState.AddModelError(string.Empty, result.IsLockedOut ? "This account is locked for a while after too many attempts." : "Email or password is wrong.");
+        ModelState.AddModelError(string.Empty, StaffSignIn.FailedMessage);
         return Page();
     }
 }
