@@ -254,7 +254,9 @@ public abstract partial class PageAuthorizationTests(IDatabaseFixture fixture) :
             foreach (var m in compiled.HandlerMethods)
             {
                 var h = new PageHandler(page.Key, m.HttpMethod.ToUpperInvariant(), string.IsNullOrEmpty(m.Name) ? null : m.Name, route,
-                    m.Parameters.Select(p => (p.Name, p.ParameterType)).ToList());
+                    // Parameters the framework fills from the services are not the caller's to send.
+                    m.Parameters.Where(p => p.BindingInfo?.BindingSource != Microsoft.AspNetCore.Mvc.ModelBinding.BindingSource.Services)
+                        .Select(p => (p.Name, p.ParameterType)).ToList());
                 found[h.Key] = h;
             }
             if (!compiled.HandlerMethods.Any(m => m.HttpMethod.Equals("GET", StringComparison.OrdinalIgnoreCase)))

@@ -49,10 +49,6 @@ public class DetailsModel(PanelRoundDbContext db, Catalog catalog) : PageModel
 
     public async Task<IActionResult> OnPostAsync()
     {
-        if (!User.IsInRole(Roles.Facilitator) && !User.IsInRole(Roles.Administrator) && !User.IsInRole(Roles.Reviewer))
-        {
-            return Forbid();
-        }
         Stream? stream = Upload is { Length: > 0 } file ? file.OpenReadStream()
             : string.IsNullOrWhiteSpace(Pasted) ? null : new MemoryStream(Encoding.UTF8.GetBytes(WithHeader(Pasted)));
         if (stream is null)
