@@ -147,7 +147,7 @@ public static class PanelsApi
             return ApiResults.NotFound($"Round {number} of panel {id} does not exist.");
         }
         var members = await db.Memberships.AsNoTracking().Where(m => m.PanelId == id && m.State != MembershipState.Revoked).ToListAsync();
-        var responded = (await db.Estimates.AsNoTracking().Where(e => e.RoundId == round.Id && !e.IsDraft).Select(e => e.MembershipId).Distinct().ToListAsync()).ToHashSet();
+        var responded = await RoundResponses.AnsweredAsync(db, round.Id);
         return TypedResults.Ok(new TrackerDto(number, round.State.ToString(), round.ClosesAt, members.Count, members.Count(m => responded.Contains(m.Id)),
             members.Where(m => responded.Contains(m.Id)).Select(m => m.PanelCode).Order(StringComparer.Ordinal).ToList(),
             members.Where(m => !responded.Contains(m.Id)).Select(m => m.PanelCode).Order(StringComparer.Ordinal).ToList()));

@@ -1,4 +1,3 @@
-using System.Text.RegularExpressions;
 using Microsoft.EntityFrameworkCore;
 using PanelRound.Core.Domain;
 using PanelRound.Data;
@@ -14,27 +13,25 @@ public sealed record ObservationInput(string? Period, double? Value, string? Sou
 
 public sealed record ExpertInput(string? Name, string? Email, string? Affiliation, string? Expertise, string? DeclaredInterests, string? ExternalKey = null);
 
-public sealed record ObservationImportResult(int Added, int Corrected, int Unchanged);
-
 /// <summary>Indicators, their observations (with correction history) and the expert roster.</summary>
-public sealed partial class Catalog(PanelRoundDbContext db, TimeProvider clock)
+public sealed class Catalog(PanelRoundDbContext db, TimeProvider clock)
 {
     public async Task<Outcome<Indicator>> CreateIndicatorAsync(IndicatorInput input, string actor)
     {
         var errors = new FieldErrors();
-        var key = errors.Required("key", input.Key, 100, "Key").ToLowerInvariant();
-        if (key.Length > 0 && !KeyPattern().IsMatch(key))
+        var key = errors.Required("key", input.Key, FieldLengths.IndicatorKey, "Key").ToLowerInvariant();
+        if (key.Length > 0 && !IndicatorKeys.IsWellFormed(key))
         {
             errors.Add("key", "Key uses lower-case letters, digits and dashes, e.g. apt-price-old-harbour.");
         }
-        var name = errors.Required("name", input.Name, 300, "Name");
-        var unit = errors.Required("unitLabel", input.UnitLabel, 50, "Unit");
+        var name = errors.Required("name", input.Name, FieldLengths.Title, "Name");
+        var unit = errors.Required("unitLabel", input.UnitLabel, FieldLengths.UnitLabel, "Unit");
         var decimals = input.Decimals ?? 0;
         if (decimals is < 0 or > 6)
         {
             errors.Add("decimals", "Decimals is 0 to 6.");
         }
-        var description = errors.Optional("description", input.Description, 4000, "Description");
+        var description = errors.Optional("description", input.Description, FieldLengths.Description, "Description");
         if (key.Length > 0 && await db.Indicators.AnyAsync(i => i.Key == key))
         {
             errors.Add("key", $"An indicator with key '{key}' exists already.");
@@ -71,7 +68,7 @@ public sealed partial class Catalog(PanelRoundDbContext db, TimeProvider clock)
         {
             errors.Add(fieldPrefix, "Give at least one observation.");
         }
-        var parsed = new List<(Period Period, double Value, string? Source, DateOnly? ObservedOn)>();
+        var parsed = new List<ObservationEntry>();
         var seen = new HashSet<Period>();
         for (var i = 0; i < inputs.Count; i++)
         {
@@ -102,90 +99,37 @@ public sealed partial class Catalog(PanelRoundDbContext db, TimeProvider clock)
             {
                 errors.Add($"{at}.observedOn", dateError);
             }
-            var source = errors.Optional($"{at}.source", o.Source, 500, "Source");
+            var source = errors.Optional($"{at}.source", o.Source, FieldLengths.Source, "Source");
             if (period is { } p && o.Value is { } value && Figures.InBounds(value))
             {
-                parsed.Add((p, value, source, o.ObservedOn));
+                parsed.Add(new ObservationEntry(p, value, source, o.ObservedOn));
             }
         }
         if (errors.Any)
         {
             return Outcome<ObservationImportResult>.Invalid(errors);
         }
-        var current = await db.Observations.Where(o => o.IndicatorId == indicatorId && o.SupersededAt == null).ToListAsync();
-        var byPeriod = current.ToDictionary(o => o.Period);
-        int added = 0, corrected = 0, unchanged = 0;
-        var now = Now;
-        foreach (var (period, value, source, observedOn) in parsed)
-        {
-            var text = period.ToString();
-            if (byPeriod.TryGetValue(text, out var old))
-            {
-                if (old.Value.Equals(value) && old.Source == source)
-                {
-                    unchanged++;
-                    continue;
-                }
-                old.SupersededAt = now;
-                corrected++;
-                Audit.Record(db, actor, "observation.corrected", "Observation", $"{indicator.Key}/{text}",
-                    details: new { indicator = indicator.Key, period = text, from = old.Value, to = value, oldSource = old.Source, source });
-            }
-            else
-            {
-                added++;
-            }
-            db.Observations.Add(new Observation
-            {
-                IndicatorId = indicatorId, Period = text, PeriodSortKey = period.SortKey, Value = value, Source = source,
-                ObservedOn = observedOn, RecordedAt = now, RecordedBy = actor,
-            });
-        }
-        if (added > 0)
-        {
-            Audit.Record(db, actor, "observations.recorded", "Indicator", indicator.Id, details: new { indicator = indicator.Key, added });
-        }
+        var result = await ObservationHistory.RecordAsync(db, indicator, parsed, actor, Now);
         await db.SaveChangesAsync();
-        return Outcome<ObservationImportResult>.Ok(new ObservationImportResult(added, corrected, unchanged));
+        return Outcome<ObservationImportResult>.Ok(result);
     }
 
     /// <summary>
     /// Reads observation rows from CSV (columns <c>period</c>, <c>value</c>, optional <c>source</c>,
-    /// <c>observed_on</c>) as the other imports do: strict RFC 4180 UTF-8 and one number rule
-    /// (<see cref="OutcomeRecorder.ParseNumber"/>); errors are keyed by row (<c>row 3</c>).
+    /// <c>observed_on</c>) as the other imports do (<see cref="CsvUploads"/>); errors are keyed by row (<c>row 3</c>).
     /// </summary>
     public static Outcome<IReadOnlyList<ObservationInput>> ParseObservationCsv(Stream csv)
     {
         var errors = new FieldErrors();
-        var table = OutcomeRecorder.ReadCsv(csv, errors);
-        if (table is null)
-        {
-            return Outcome<IReadOnlyList<ObservationInput>>.Invalid(errors);
-        }
-        foreach (var required in new[] { "period", "value" })
-        {
-            if (!table.Headers.Contains(required))
-            {
-                errors.Add("file", $"The header row has no '{required}' column (needed: period, value; optional: source, observed_on).");
-            }
-        }
-        if (errors.Any)
+        var table = CsvUploads.Read(csv, errors);
+        if (table is null || !CsvUploads.RequireColumns(table, errors, ["period", "value"], "source, observed_on"))
         {
             return Outcome<IReadOnlyList<ObservationInput>>.Invalid(errors);
         }
         var list = new List<ObservationInput>();
         foreach (var r in table.Rows)
         {
-            var value = OutcomeRecorder.ParseNumber(r["value"], out var badValue);
-            if (badValue is not null)
-            {
-                errors.Add(OutcomeRecorder.CsvRowKey(null, r.Row), $"Row {r.Row} (line {r.Line}): value {badValue}");
-            }
-            var observedOn = OutcomeRecorder.ParseDate(r["observed_on"], out var badDate);
-            if (badDate)
-            {
-                errors.Add(OutcomeRecorder.CsvRowKey(null, r.Row), $"Row {r.Row} (line {r.Line}): observed_on '{r["observed_on"]}' is not a date (yyyy-MM-dd).");
-            }
+            var (value, observedOn) = CsvUploads.ReadValueAndObservedOn(r, errors);
             list.Add(new ObservationInput(r["period"], value, r["source"], observedOn));
         }
         return errors.Any ? Outcome<IReadOnlyList<ObservationInput>>.Invalid(errors) : Outcome<IReadOnlyList<ObservationInput>>.Ok(list);
@@ -194,8 +138,8 @@ public sealed partial class Catalog(PanelRoundDbContext db, TimeProvider clock)
     public async Task<Outcome<Expert>> CreateExpertAsync(ExpertInput input, string actor)
     {
         var errors = new FieldErrors();
-        var name = errors.Required("name", input.Name, 200, "Name");
-        var email = errors.Required("email", input.Email, 256, "Email").ToLowerInvariant();
+        var name = errors.Required("name", input.Name, FieldLengths.Name, "Name");
+        var email = errors.Required("email", input.Email, FieldLengths.Email, "Email").ToLowerInvariant();
         if (email.Length > 0 && !MailAddresses.IsValid(email))
         {
             errors.Add("email", "Email is not an address mail can be sent to (one address such as name@firm.example; no spaces, no doubled, leading or trailing dots).");
@@ -204,7 +148,7 @@ public sealed partial class Catalog(PanelRoundDbContext db, TimeProvider clock)
         {
             errors.Add("email", "An expert with this email is on the roster already.");
         }
-        var externalKey = errors.Optional("externalKey", input.ExternalKey, 200, "External key");
+        var externalKey = errors.Optional("externalKey", input.ExternalKey, FieldLengths.ExternalKey, "External key");
         if (externalKey is not null && await db.Experts.AnyAsync(e => e.ExternalKey == externalKey))
         {
             errors.Add("externalKey", "An expert with this external key is on the roster already.");
@@ -212,9 +156,9 @@ public sealed partial class Catalog(PanelRoundDbContext db, TimeProvider clock)
         var expert = new Expert
         {
             Name = name, Email = email,
-            Affiliation = errors.Optional("affiliation", input.Affiliation, 200, "Affiliation"),
-            Expertise = errors.Optional("expertise", input.Expertise, 500, "Expertise"),
-            DeclaredInterests = errors.Optional("declaredInterests", input.DeclaredInterests, 2000, "Declared interests"),
+            Affiliation = errors.Optional("affiliation", input.Affiliation, FieldLengths.Affiliation, "Affiliation"),
+            Expertise = errors.Optional("expertise", input.Expertise, FieldLengths.Expertise, "Expertise"),
+            DeclaredInterests = errors.Optional("declaredInterests", input.DeclaredInterests, FieldLengths.DeclaredInterests, "Declared interests"),
             ExternalKey = externalKey, CreatedAt = Now,
         };
         if (errors.Any)
@@ -264,7 +208,4 @@ public sealed partial class Catalog(PanelRoundDbContext db, TimeProvider clock)
         }
         return on > today ? $"The day it became known ({on:yyyy-MM-dd}) is after today ({today:yyyy-MM-dd})." : null;
     }
-
-    [GeneratedRegex("^[a-z0-9][a-z0-9-]*$")]
-    private static partial Regex KeyPattern();
 }

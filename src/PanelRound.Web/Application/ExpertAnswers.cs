@@ -221,7 +221,7 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
             {
                 errors.Add($"{at}.confidence", "Confidence is 1 (low) to 5 (high).");
             }
-            var rationale = errors.Optional($"{at}.rationale", a.Rationale, 2000, "Rationale");
+            var rationale = errors.Optional($"{at}.rationale", a.Rationale, FieldLengths.Rationale, "Rationale");
             var targetPeriods = q.TargetPeriods.Split(',');
             var given = a.Periods ?? [];
             var seenPeriods = new HashSet<string>(StringComparer.Ordinal);

@@ -1,4 +1,3 @@
-using System.Text.Json;
 using Microsoft.EntityFrameworkCore;
 using PanelRound.Core.Domain;
 using PanelRound.Data;
@@ -81,8 +80,8 @@ public sealed class PanelWorkflow(PanelRoundDbContext db, TimeProvider clock, IM
     private static FieldErrors Apply(Panel panel, PanelInput input)
     {
         var errors = new FieldErrors();
-        panel.Title = errors.Required("title", input.Title, 300, "Title");
-        panel.Brief = errors.Optional("brief", input.Brief, 20000, "Brief") ?? "";
+        panel.Title = errors.Required("title", input.Title, FieldLengths.Title, "Title");
+        panel.Brief = errors.Optional("brief", input.Brief, FieldLengths.Brief, "Brief") ?? "";
         if (input.StartsOn is not { } starts)
         {
             errors.Add("startsOn", "The start date is required: the reference series is what was observed before it.");
@@ -198,8 +197,8 @@ public sealed class PanelWorkflow(PanelRoundDbContext db, TimeProvider clock, IM
             return Outcome<Question>.NotFound($"Question {questionId} is not on panel {panelId}.");
         }
         var errors = new FieldErrors();
-        question.Label = errors.Required("label", input.Label, 300, "Label");
-        question.HelpText = errors.Optional("helpText", input.HelpText, 4000, "Help text");
+        question.Label = errors.Required("label", input.Label, FieldLengths.Title, "Label");
+        question.HelpText = errors.Optional("helpText", input.HelpText, FieldLengths.Description, "Help text");
         if (input.IndicatorId is not { } indicatorId || !await db.Indicators.AnyAsync(i => i.Id == indicatorId))
         {
             errors.Add("indicatorId", "Choose an existing indicator.");
@@ -318,7 +317,7 @@ public sealed class PanelWorkflow(PanelRoundDbContext db, TimeProvider clock, IM
         var token = Secrets.NewToken();
         var membership = new PanelMembership
         {
-            PanelId = panelId, ExpertId = expertId, PanelCode = await NewPanelCodeAsync(), TokenHash = Secrets.Hash(token),
+            PanelId = panelId, ExpertId = expertId, PanelCode = (await PanelCodes.NewAsync(db, 1))[0], TokenHash = Secrets.Hash(token),
             TokenIssuedAt = Now, State = MembershipState.Invited, CreatedAt = Now,
         };
         db.Memberships.Add(membership);
@@ -400,9 +399,10 @@ public sealed class PanelWorkflow(PanelRoundDbContext db, TimeProvider clock, IM
         {
             return Outcome<MailReport>.Conflict("No round is open.");
         }
-        var answered = await db.Estimates.Where(e => e.RoundId == round.Id && !e.IsDraft).Select(e => e.MembershipId).Distinct().ToListAsync();
-        var pending = await db.Memberships.Include(m => m.Expert)
-            .Where(m => m.PanelId == panelId && m.State != MembershipState.Revoked && !answered.Contains(m.Id)).OrderBy(m => m.Id).ToListAsync();
+        var answered = await RoundResponses.AnsweredAsync(db, round.Id);
+        var pending = (await db.Memberships.Include(m => m.Expert)
+            .Where(m => m.PanelId == panelId && m.State != MembershipState.Revoked).OrderBy(m => m.Id).ToListAsync())
+            .Where(m => !answered.Contains(m.Id)).ToList();
         int sent = 0, failed = 0;
         foreach (var m in pending)
         {
@@ -532,22 +532,7 @@ public sealed class PanelWorkflow(PanelRoundDbContext db, TimeProvider clock, IM
             // The transaction is rolled back: the round stays open until the cause is removed.
             return Outcome<Round>.Conflict($"Round {roundNumber} cannot close: {problem}");
         }
-        var settings = FeedbackCalculator.SettingsOf(panel.Settings);
-        foreach (var q in panel.Questions)
-        {
-            var toQuestion = answers.Where(a => a.QuestionId == q.Id).ToList();
-            foreach (var period in q.TargetPeriods.Split(','))
-            {
-                var forPeriod = toQuestion.Where(a => a.Period == period).ToList();
-                var view = FeedbackCalculator.Compute(q, period, forPeriod, settings);
-                var rationales = view.Withheld || !panel.Settings.ShowRationales ? [] : FeedbackCalculator.Rationales(toQuestion);
-                db.RoundFeedback.Add(new RoundFeedback
-                {
-                    RoundId = round.Id, QuestionId = q.Id, Period = period, N = view.N, Withheld = view.Withheld,
-                    StatisticsJson = view.ToJson(), RationalesJson = JsonSerializer.Serialize(rationales),
-                });
-            }
-        }
+        FeedbackFreezer.Freeze(db, round.Id, panel.Questions, answers, panel.Settings);
         Log(actor, "round.closed", "Round", round.Id, panelId, new { round.Number, answers = answers.Select(a => a.MembershipId).Distinct().Count() });
         await db.SaveChangesAsync();
         await tx.CommitAsync();
@@ -633,16 +618,4 @@ public sealed class PanelWorkflow(PanelRoundDbContext db, TimeProvider clock, IM
     /// </summary>
     public static bool AnswersCount(MembershipState state, DateTime? revokedAt, DateTime? roundClosedAt) =>
         state != MembershipState.Revoked || (roundClosedAt is { } closed && revokedAt > closed);
-
-    private async Task<string> NewPanelCodeAsync()
-    {
-        while (true)
-        {
-            var code = Secrets.NewPanelCode();
-            if (!await db.Memberships.AnyAsync(m => m.PanelCode == code))
-            {
-                return code;
-            }
-        }
-    }
 }

@@ -1,5 +1,5 @@
 using System.Text;
-using PanelRound.Web.Application.Scoring;
+using PanelRound.Web.Application;
 using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Tests.Defects;
@@ -187,7 +187,7 @@ public sealed class CsvReaderTests
     [InlineData("-1e12", -1e12)]
     public void ParseNumber_InvariantDecimals_AreRead(string text, double expected)
     {
-        var value = OutcomeRecorder.ParseNumber(text, out var error);
+        var value = CsvUploads.ParseNumber(text, out var error);
 
         Assert.Null(error);
         Assert.Equal(expected, value);
@@ -210,7 +210,7 @@ public sealed class CsvReaderTests
     [InlineData("-2e12")]
     public void ParseNumber_AnythingElse_IsAnErrorWithAMessage(string text)
     {
-        var value = OutcomeRecorder.ParseNumber(text, out var error);
+        var value = CsvUploads.ParseNumber(text, out var error);
 
         Assert.Null(value);
         Assert.False(string.IsNullOrWhiteSpace(error));

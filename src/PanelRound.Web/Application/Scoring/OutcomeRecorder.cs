@@ -1,8 +1,6 @@
-using System.Globalization;
 using Microsoft.EntityFrameworkCore;
 using PanelRound.Core.Domain;
 using PanelRound.Data;
-using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Application.Scoring;
 
@@ -27,18 +25,12 @@ public sealed class OutcomeRecorder(PanelRoundDbContext db, Catalog catalog, Tim
     public async Task<Outcome<ObservationImportResult>> ImportCsvAsync(Stream csv, string actor)
     {
         var errors = new FieldErrors();
-        var table = ReadCsv(csv, errors);
+        var table = CsvUploads.Read(csv, errors);
         if (table is null)
         {
             return Outcome<ObservationImportResult>.Invalid(errors);
         }
-        foreach (var required in new[] { "indicator", "period", "value" })
-        {
-            if (!table.Headers.Contains(required))
-            {
-                errors.Add("file", $"The header row has no '{required}' column (needed: indicator, period, value; optional: source, observed_on).");
-            }
-        }
+        CsvUploads.RequireColumns(table, errors, ["indicator", "period", "value"], "source, observed_on");
         if (table.Rows.Count == 0)
         {
             errors.Add("file", "The file has no data rows.");
@@ -51,16 +43,7 @@ public sealed class OutcomeRecorder(PanelRoundDbContext db, Catalog catalog, Tim
         var rowNumbers = new List<int>();
         foreach (var r in table.Rows)
         {
-            var value = ParseNumber(r["value"], out var badValue);
-            if (badValue is not null)
-            {
-                errors.Add(CsvRowKey(null, r.Row), $"Row {r.Row} (line {r.Line}): value {badValue}");
-            }
-            var observedOn = ParseDate(r["observed_on"], out var badDate);
-            if (badDate)
-            {
-                errors.Add(CsvRowKey(null, r.Row), $"Row {r.Row} (line {r.Line}): observed_on '{r["observed_on"]}' is not a date (yyyy-MM-dd).");
-            }
+            var (value, observedOn) = CsvUploads.ReadValueAndObservedOn(r, errors);
             inputs.Add(new OutcomeInput(r["indicator"], r["period"], value, r["source"], observedOn));
             rowNumbers.Add(r.Row);
         }
@@ -68,7 +51,7 @@ public sealed class OutcomeRecorder(PanelRoundDbContext db, Catalog catalog, Tim
         {
             return Outcome<ObservationImportResult>.Invalid(errors);
         }
-        return await RecordAsync(inputs, actor, (i, _) => CsvRowKey(null, rowNumbers[i]));
+        return await RecordAsync(inputs, actor, (i, _) => CsvUploads.RowKey(null, rowNumbers[i]));
     }
 
     private async Task<Outcome<ObservationImportResult>> RecordAsync(IReadOnlyList<OutcomeInput> inputs, string actor, Func<int, string, string> keyOf)
@@ -121,9 +104,9 @@ public sealed class OutcomeRecorder(PanelRoundDbContext db, Catalog catalog, Tim
             {
                 errors.Add(keyOf(i, "observedOn"), label + dateError);
             }
-            if (o.Source?.Trim().Length > 500)
+            if (o.Source?.Trim().Length > FieldLengths.Source)
             {
-                errors.Add(keyOf(i, "source"), label + "The source note is at most 500 characters.");
+                errors.Add(keyOf(i, "source"), label + $"The source note is at most {FieldLengths.Source} characters.");
             }
             if (indicatorId is { } indicator && period is { } p)
             {
@@ -153,61 +136,5 @@ public sealed class OutcomeRecorder(PanelRoundDbContext db, Catalog catalog, Tim
         }
         await tx.CommitAsync();
         return Outcome<ObservationImportResult>.Ok(new ObservationImportResult(added, corrected, unchanged));
-    }
-
-    /// <summary>
-    /// Reads an uploaded CSV file for an import (<see cref="CsvFiles.Read(Stream)"/>: strict RFC 4180
-    /// UTF-8). When it cannot be read, adds every error (keyed like the imports' row errors: <c>row 3</c>,
-    /// or <c>forecasts row 3</c> for a named file; the file's own key for the header) and returns null.
-    /// </summary>
-    /// <param name="csv">The uploaded file.</param>
-    /// <param name="errors">Where the file's errors go.</param>
-    /// <param name="file">The upload's field name (<c>forecasts</c>), or null for an import of one file (keyed <c>file</c>).</param>
-    internal static CsvTable? ReadCsv(Stream csv, FieldErrors errors, string? file = null)
-    {
-        var table = CsvFiles.Read(csv);
-        foreach (var e in table.Errors)
-        {
-            errors.Add(e.Row == 0 ? file ?? "file" : CsvRowKey(file, e.Row), e.Message);
-        }
-        return table.IsValid ? table : null;
-    }
-
-    /// <summary>The error key of a row of an uploaded CSV file: <c>row 3</c>, or <c>forecasts row 3</c> for a named file.</summary>
-    internal static string CsvRowKey(string? file, int row) => file is null ? $"row {row}" : $"{file} row {row}";
-
-    /// <summary>
-    /// Reads a number of a CSV file by the one rule for machine-written numbers (<see cref="Core.Domain.Numbers.TryParseInvariant"/>): invariant culture, an optional sign, digits with an
-    /// optional dot and decimals, an optional exponent (<c>e</c> or <c>E</c>, optional sign, digits); no
-    /// thousands separators, no NaN or infinity. The magnitude is at most
-    /// <see cref="Figures.MaxMagnitude"/>, and a number whose digits are not all zero may not underflow
-    /// to zero or to a subnormal double (below 2.2e-308 in magnitude), which would store another value.
-    /// </summary>
-    /// <returns>The value; null when the field is empty (no error) or wrong (then <paramref name="error"/> says why, to follow the column's name).</returns>
-    public static double? ParseNumber(string? text, out string? error)
-    {
-        error = null;
-        if (text is null)
-        {
-            return null;
-        }
-        var reading = Core.Domain.Numbers.TryParseInvariant(text);
-        error = reading.Error;
-        return reading.IsValid ? reading.Value : null;
-    }
-
-    internal static DateOnly? ParseDate(string? text, out bool bad)
-    {
-        bad = false;
-        if (text is null)
-        {
-            return null;
-        }
-        if (DateOnly.TryParseExact(text, "yyyy-MM-dd", CultureInfo.InvariantCulture, DateTimeStyles.None, out var date))
-        {
-            return date;
-        }
-        bad = true;
-        return null;
     }
 }

@@ -1,6 +1,5 @@
 using System.Globalization;
 using System.Text;
-using System.Text.RegularExpressions;
 using Microsoft.EntityFrameworkCore;
 using Microsoft.Extensions.Options;
 using PanelRound.Core.Domain;
@@ -40,7 +39,7 @@ public sealed record PastPanelImportResult(
 /// correction rule as the catalog: a different value for a period that has one supersedes it and
 /// is audited.</para>
 /// </remarks>
-public sealed partial class PastPanelImport(PanelRoundDbContext db, TimeProvider clock, ConsensusPublisher publisher, IOptions<ScoringOptions> options)
+public sealed class PastPanelImport(PanelRoundDbContext db, TimeProvider clock, ConsensusPublisher publisher, IOptions<ScoringOptions> options)
 {
     /// <summary>The most row errors reported; the rest are counted.</summary>
     public const int MaxReportedErrors = 200;
@@ -151,7 +150,7 @@ public sealed partial class PastPanelImport(PanelRoundDbContext db, TimeProvider
         await db.SaveChangesAsync();
 
         // Panels with their questions, memberships and rounds.
-        var codes = await NewPanelCodesAsync(forecastRows.Select(r => (r.Panel, r.Expert)).Distinct().Count());
+        var codes = await PanelCodes.NewAsync(db, forecastRows.Select(r => (r.Panel, r.Expert)).Distinct().Count());
         var nextCode = 0;
         var built = new List<(Panel Panel, List<ForecastRow> Rows)>();
         foreach (var group in forecastRows.GroupBy(r => r.Panel, StringComparer.Ordinal))
@@ -202,7 +201,6 @@ public sealed partial class PastPanelImport(PanelRoundDbContext db, TimeProvider
         {
             var questionOf = panel.Questions.ToDictionary(q => indicators.Single(i => i.Value.Id == q.IndicatorId).Key, StringComparer.Ordinal);
             var membershipOf = panel.Memberships.ToDictionary(m => m.ExpertId);
-            var settings = FeedbackCalculator.SettingsOf(panel.Settings);
             foreach (var round in panel.Rounds)
             {
                 var answers = new List<CountedAnswer>();
@@ -219,19 +217,7 @@ public sealed partial class PastPanelImport(PanelRoundDbContext db, TimeProvider
                     answers.Add(CountedAnswer.From(estimate));
                     estimates++;
                 }
-                foreach (var q in panel.Questions)
-                {
-                    var toQuestion = answers.Where(a => a.QuestionId == q.Id).ToList();
-                    foreach (var period in q.TargetPeriods.Split(','))
-                    {
-                        var view = FeedbackCalculator.Compute(q, period, toQuestion.Where(a => a.Period == period).ToList(), settings);
-                        db.RoundFeedback.Add(new RoundFeedback
-                        {
-                            RoundId = round.Id, QuestionId = q.Id, Period = period, N = view.N, Withheld = view.Withheld,
-                            StatisticsJson = view.ToJson(), RationalesJson = "[]",
-                        });
-                    }
-                }
+                FeedbackFreezer.Freeze(db, round.Id, panel.Questions, answers, panel.Settings);
             }
         }
         await db.SaveChangesAsync();
@@ -268,13 +254,13 @@ public sealed partial class PastPanelImport(PanelRoundDbContext db, TimeProvider
         return Outcome<PastPanelImportResult>.Invalid(report.Errors);
     }
 
-    private static string RowKey(string file, int row) => OutcomeRecorder.CsvRowKey(file, row);
+    private static string RowKey(string file, int row) => CsvUploads.RowKey(file, row);
 
     /// <summary>Reads one of the files as every CSV import does; its errors go to the report.</summary>
     private static CsvTable? ReadCsv(Stream stream, string file, Report report)
     {
         var errors = new FieldErrors();
-        var table = OutcomeRecorder.ReadCsv(stream, errors, file);
+        var table = CsvUploads.Read(stream, errors, file);
         foreach (var (key, messages) in errors.ToDictionary())
         {
             foreach (var message in messages)
@@ -330,16 +316,16 @@ public sealed partial class PastPanelImport(PanelRoundDbContext db, TimeProvider
             {
                 Error("panel is empty.");
             }
-            else if (panel.Length > 200)
+            else if (panel.Length > FieldLengths.ExternalKey)
             {
-                Error("panel is at most 200 characters.");
+                Error($"panel is at most {FieldLengths.ExternalKey} characters.");
             }
-            var start = OutcomeRecorder.ParseDate(r["panel_start"], out _);
+            var start = CsvUploads.ParseDate(r["panel_start"], out _);
             if (start is null)
             {
                 Error($"panel_start '{r["panel_start"]}' is not a date (yyyy-MM-dd).");
             }
-            var closed = OutcomeRecorder.ParseDate(r["panel_closed"], out var badClosed);
+            var closed = CsvUploads.ParseDate(r["panel_closed"], out var badClosed);
             if (badClosed)
             {
                 Error($"panel_closed '{r["panel_closed"]}' is not a date (yyyy-MM-dd).");
@@ -349,15 +335,15 @@ public sealed partial class PastPanelImport(PanelRoundDbContext db, TimeProvider
                 Error("panel_closed is before panel_start.");
             }
             var indicator = r["indicator"]?.ToLowerInvariant();
-            if (indicator is null || indicator.Length > 100 || !KeyPattern().IsMatch(indicator))
+            if (indicator is null || indicator.Length > FieldLengths.IndicatorKey || !IndicatorKeys.IsWellFormed(indicator))
             {
                 Error($"indicator '{r["indicator"]}' is not a key (lower-case letters, digits and dashes, e.g. apt-price-old-harbour).");
                 indicator = null;
             }
             var unit = r["unit"];
-            if (unit is null || unit.Length > 50)
+            if (unit is null || unit.Length > FieldLengths.UnitLabel)
             {
-                Error("unit is empty or longer than 50 characters.");
+                Error($"unit is empty or longer than {FieldLengths.UnitLabel} characters.");
             }
             if (!Period.TryParse(r["target_period"], out var period))
             {
@@ -368,18 +354,18 @@ public sealed partial class PastPanelImport(PanelRoundDbContext db, TimeProvider
                 Error($"target_period {period} ends before panel_start {s:yyyy-MM-dd}: a target period lies after the panel's start.");
             }
             var expert = r["expert"];
-            if (expert is null || expert.Length > 200)
+            if (expert is null || expert.Length > FieldLengths.ExternalKey)
             {
-                Error("expert is empty or longer than 200 characters.");
+                Error($"expert is empty or longer than {FieldLengths.ExternalKey} characters.");
             }
             if (!int.TryParse(r["round"], NumberStyles.None, CultureInfo.InvariantCulture, out var round) || round is < 1 or > 50)
             {
                 Error($"round '{r["round"]}' is not a round number (1, 2, ...).");
             }
-            var value = OutcomeRecorder.ParseNumber(r["value"], out var badValue);
-            var p10 = OutcomeRecorder.ParseNumber(r["p10"], out var bad10);
-            var p50 = OutcomeRecorder.ParseNumber(r["p50"], out var bad50);
-            var p90 = OutcomeRecorder.ParseNumber(r["p90"], out var bad90);
+            var value = CsvUploads.ParseNumber(r["value"], out var badValue);
+            var p10 = CsvUploads.ParseNumber(r["p10"], out var bad10);
+            var p50 = CsvUploads.ParseNumber(r["p50"], out var bad50);
+            var p90 = CsvUploads.ParseNumber(r["p90"], out var bad90);
             var badNumbers = new[] { ("value", badValue), ("p10", bad10), ("p50", bad50), ("p90", bad90) }.Where(b => b.Item2 is not null).ToList();
             foreach (var (name, bad) in badNumbers)
             {
@@ -473,7 +459,7 @@ public sealed partial class PastPanelImport(PanelRoundDbContext db, TimeProvider
             var before = report.Count;
             void Error(string message) => report.Add(key, $"Row {r.Row} (line {r.Line}): {message}");
             var indicator = r["indicator"]?.ToLowerInvariant();
-            if (indicator is null || !KeyPattern().IsMatch(indicator))
+            if (indicator is null || !IndicatorKeys.IsWellFormed(indicator))
             {
                 Error($"indicator '{r["indicator"]}' is not a key (lower-case letters, digits and dashes).");
             }
@@ -481,7 +467,7 @@ public sealed partial class PastPanelImport(PanelRoundDbContext db, TimeProvider
             {
                 Error($"period '{r["period"]}' is not a period: write a year such as 2024 or a quarter such as 2024Q3.");
             }
-            var value = OutcomeRecorder.ParseNumber(r["value"], out var badValue);
+            var value = CsvUploads.ParseNumber(r["value"], out var badValue);
             if (badValue is not null)
             {
                 Error($"value {badValue}");
@@ -491,11 +477,11 @@ public sealed partial class PastPanelImport(PanelRoundDbContext db, TimeProvider
                 Error("value is empty.");
             }
             var source = r["source"];
-            if (source?.Length > 500)
+            if (source?.Length > FieldLengths.Source)
             {
-                Error("source is at most 500 characters.");
+                Error($"source is at most {FieldLengths.Source} characters.");
             }
-            var observedOn = OutcomeRecorder.ParseDate(r["observed_on"], out var badDate);
+            var observedOn = CsvUploads.ParseDate(r["observed_on"], out var badDate);
             if (badDate)
             {
                 Error($"observed_on '{r["observed_on"]}' is not a date (yyyy-MM-dd).");
@@ -570,76 +556,16 @@ public sealed partial class PastPanelImport(PanelRoundDbContext db, TimeProvider
         return $"{(readable.Length == 0 ? "expert" : readable)}-{Secrets.Hash(key)[..8]}@imported.invalid";
     }
 
-    private async Task<List<string>> NewPanelCodesAsync(int count)
-    {
-        var codes = new HashSet<string>(StringComparer.Ordinal);
-        while (codes.Count < count)
-        {
-            var batch = new HashSet<string>(StringComparer.Ordinal);
-            while (batch.Count < count - codes.Count)
-            {
-                var code = Secrets.NewPanelCode();
-                if (!codes.Contains(code))
-                {
-                    batch.Add(code);
-                }
-            }
-            var list = batch.ToList();
-            var taken = await db.Memberships.Where(m => list.Contains(m.PanelCode)).Select(m => m.PanelCode).ToListAsync();
-            codes.UnionWith(batch.Except(taken, StringComparer.Ordinal));
-        }
-        return [.. codes];
-    }
-
     private async Task<(int Added, int Corrected, int Unchanged)> RecordObservationsAsync(
         IReadOnlyList<ObservationRow> rows, IReadOnlyDictionary<string, Indicator> indicators, string actor, DateTime now)
     {
-        if (rows.Count == 0)
-        {
-            return (0, 0, 0);
-        }
-        var ids = rows.Select(r => indicators[r.Indicator].Id).Distinct().ToList();
-        var current = (await db.Observations.Where(o => o.SupersededAt == null && ids.Contains(o.IndicatorId)).ToListAsync())
-            .ToDictionary(o => (o.IndicatorId, o.Period));
         int added = 0, corrected = 0, unchanged = 0;
         foreach (var group in rows.GroupBy(r => r.Indicator, StringComparer.Ordinal))
         {
-            var indicator = indicators[group.Key];
-            var addedHere = 0;
-            foreach (var r in group)
-            {
-                var text = r.Period.ToString();
-                if (current.TryGetValue((indicator.Id, text), out var old))
-                {
-                    if (old.Value.Equals(r.Value) && old.Source == r.Source)
-                    {
-                        unchanged++;
-                        continue;
-                    }
-                    old.SupersededAt = now;
-                    corrected++;
-                    Audit.Record(db, actor, "observation.corrected", "Observation", $"{indicator.Key}/{text}",
-                        details: new { indicator = indicator.Key, period = text, from = old.Value, to = r.Value, oldSource = old.Source, source = r.Source }, at: now);
-                }
-                else
-                {
-                    addedHere++;
-                }
-                db.Observations.Add(new Observation
-                {
-                    IndicatorId = indicator.Id, Period = text, PeriodSortKey = r.Period.SortKey, Value = r.Value, Source = r.Source,
-                    ObservedOn = r.ObservedOn, RecordedAt = now, RecordedBy = actor,
-                });
-            }
-            if (addedHere > 0)
-            {
-                Audit.Record(db, actor, "observations.recorded", "Indicator", indicator.Id, details: new { indicator = indicator.Key, added = addedHere }, at: now);
-            }
-            added += addedHere;
+            var result = await ObservationHistory.RecordAsync(db, indicators[group.Key],
+                [.. group.Select(r => new ObservationEntry(r.Period, r.Value, r.Source, r.ObservedOn))], actor, now);
+            (added, corrected, unchanged) = (added + result.Added, corrected + result.Corrected, unchanged + result.Unchanged);
         }
         return (added, corrected, unchanged);
     }
-
-    [GeneratedRegex("^[a-z0-9][a-z0-9-]*$")]
-    private static partial Regex KeyPattern();
 }

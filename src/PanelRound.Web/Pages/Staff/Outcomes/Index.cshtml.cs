@@ -56,13 +56,7 @@ public class IndexModel(PanelRoundDbContext db, OutcomeRecorder recorder, Scorin
         var result = await recorder.RecordAsync(new OutcomeInput(Input.Indicator, Input.Period, Input.Value, Input.Source, Input.ObservedOn), Audit.ActorOf(User));
         if (!result.IsOk)
         {
-            foreach (var (field, messages) in result.Errors)
-            {
-                foreach (var m in messages)
-                {
-                    ModelState.AddModelError($"{nameof(Input)}.{char.ToUpperInvariant(field[0])}{field[1..]}", m);
-                }
-            }
+            ModelState.AddOutcome(result);
             await LoadAsync();
             return Page();
         }

@@ -54,7 +54,7 @@ public class DetailsModel(PanelRoundDbContext db, PanelWorkflow workflow) : Page
         Roster = await db.Experts.AsNoTracking().Where(e => !members.Contains(e.Id)).OrderBy(e => e.Name).ToListAsync();
         if (OpenRound is { } open)
         {
-            var answered = await db.Estimates.AsNoTracking().Where(e => e.RoundId == open.Id && !e.IsDraft).Select(e => e.MembershipId).Distinct().ToListAsync();
+            var answered = await RoundResponses.AnsweredAsync(db, open.Id);
             Responded = panel.Memberships.ToDictionary(m => m.Id, m => answered.Contains(m.Id));
             CloseFailure = await RoundDeadlineService.LatestFailureAsync(db, panel.Id, open.Id);
         }
