@@ -29,8 +29,11 @@ public static class WebSetup
         services.AddOptions<DemoOptions>().BindConfiguration(DemoOptions.Section).ValidateOnStart();
         services.AddOptions<MailOptions>().BindConfiguration(MailOptions.Section).ValidateOnStart();
         services.AddOptions<RoundOptions>().BindConfiguration(RoundOptions.Section).ValidateOnStart();
-        services.AddScoped<Catalog>();
-        services.AddScoped<PanelWorkflow>();
+        services.AddScoped<IndicatorCatalog>();
+        services.AddScoped<ExpertRoster>();
+        services.AddScoped<PanelSetup>();
+        services.AddScoped<Memberships>();
+        services.AddScoped<RoundLifecycle>();
         services.AddScoped<ConsensusPublisher>();
         services.AddScoped<ExpertAnswers>();
         services.AddScoped<PanelResults>();

@@ -31,7 +31,7 @@ public static class CatalogApi
         TypedResults.Ok((await db.Indicators.AsNoTracking().OrderBy(i => i.Name).ToListAsync()).Select(IndicatorDto.From).ToList());
 
     public static async Task<Results<Created<IndicatorDto>, ValidationProblem, ProblemHttpResult>> CreateIndicator(
-        IndicatorInput input, Catalog catalog, ClaimsPrincipal user) =>
+        IndicatorInput input, IndicatorCatalog catalog, ClaimsPrincipal user) =>
         (await catalog.CreateIndicatorAsync(input, Audit.ActorOf(user))).ToCreated(IndicatorDto.From, i => $"/api/indicators/{i.Id}");
 
     public static async Task<Results<Ok<List<ObservationDto>>, ProblemHttpResult>> ListObservations(int id, PanelRoundDbContext db)
@@ -40,18 +40,18 @@ public static class CatalogApi
         {
             return ApiResults.NotFound($"Indicator {id} does not exist.");
         }
-        return TypedResults.Ok((await Catalog.CurrentObservationsAsync(db, id)).Select(ObservationDto.From).ToList());
+        return TypedResults.Ok((await IndicatorCatalog.CurrentObservationsAsync(db, id)).Select(ObservationDto.From).ToList());
     }
 
     public static async Task<Results<Ok<ObservationImportResult>, ValidationProblem, ProblemHttpResult>> RecordObservations(
-        int id, List<ObservationInput> input, Catalog catalog, ClaimsPrincipal user) =>
+        int id, List<ObservationInput> input, IndicatorCatalog catalog, ClaimsPrincipal user) =>
         (await catalog.RecordObservationsAsync(id, input, Audit.ActorOf(user))).ToOk(r => r);
 
     public static async Task<Results<Ok<ObservationImportResult>, ValidationProblem, ProblemHttpResult>> ImportObservationsCsv(
-        int id, IFormFile file, Catalog catalog, ClaimsPrincipal user)
+        int id, IFormFile file, IndicatorCatalog catalog, ClaimsPrincipal user)
     {
         await using var stream = file.OpenReadStream();
-        var parsed = Catalog.ParseObservationCsv(stream);
+        var parsed = ObservationCsv.Parse(stream);
         if (!parsed.IsOk)
         {
             return parsed.As<ObservationImportResult>().ToOk(r => r);
@@ -63,6 +63,6 @@ public static class CatalogApi
         TypedResults.Ok((await db.Experts.AsNoTracking().OrderBy(e => e.Name).ToListAsync()).Select(ExpertDto.From).ToList());
 
     public static async Task<Results<Created<ExpertDto>, ValidationProblem, ProblemHttpResult>> CreateExpert(
-        ExpertInput input, Catalog catalog, ClaimsPrincipal user) =>
-        (await catalog.CreateExpertAsync(input, Audit.ActorOf(user))).ToCreated(ExpertDto.From, e => $"/api/experts/{e.Id}");
+        ExpertInput input, ExpertRoster roster, ClaimsPrincipal user) =>
+        (await roster.CreateExpertAsync(input, Audit.ActorOf(user))).ToCreated(ExpertDto.From, e => $"/api/experts/{e.Id}");
 }

@@ -82,24 +82,24 @@ public static class PanelsApi
     }
 
     public static async Task<Results<Created<PanelDto>, ValidationProblem, ProblemHttpResult>> CreatePanel(
-        PanelInput input, PanelWorkflow workflow, ClaimsPrincipal user) =>
-        (await workflow.CreatePanelAsync(input, Audit.ActorOf(user))).ToCreated(PanelDto.From, p => $"/api/panels/{p.Id}");
+        PanelInput input, PanelSetup setup, ClaimsPrincipal user) =>
+        (await setup.CreatePanelAsync(input, Audit.ActorOf(user))).ToCreated(PanelDto.From, p => $"/api/panels/{p.Id}");
 
     public static async Task<Results<Ok<PanelDto>, ValidationProblem, ProblemHttpResult>> UpdatePanel(
-        int id, PanelInput input, PanelWorkflow workflow, ClaimsPrincipal user) =>
-        (await workflow.UpdatePanelAsync(id, input, Audit.ActorOf(user))).ToOk(PanelDto.From);
+        int id, PanelInput input, PanelSetup setup, ClaimsPrincipal user) =>
+        (await setup.UpdatePanelAsync(id, input, Audit.ActorOf(user))).ToOk(PanelDto.From);
 
     public static async Task<Results<Created<QuestionDto>, ValidationProblem, ProblemHttpResult>> AddQuestion(
-        int id, QuestionInput input, PanelWorkflow workflow, ClaimsPrincipal user) =>
-        (await workflow.AddQuestionAsync(id, input, Audit.ActorOf(user))).ToCreated(QuestionDto.From, q => $"/api/panels/{id}/questions/{q.Id}");
+        int id, QuestionInput input, PanelSetup setup, ClaimsPrincipal user) =>
+        (await setup.AddQuestionAsync(id, input, Audit.ActorOf(user))).ToCreated(QuestionDto.From, q => $"/api/panels/{id}/questions/{q.Id}");
 
     public static async Task<Results<Ok<QuestionDto>, ValidationProblem, ProblemHttpResult>> UpdateQuestion(
-        int id, int questionId, QuestionInput input, PanelWorkflow workflow, ClaimsPrincipal user) =>
-        (await workflow.UpdateQuestionAsync(id, questionId, input, Audit.ActorOf(user))).ToOk(QuestionDto.From);
+        int id, int questionId, QuestionInput input, PanelSetup setup, ClaimsPrincipal user) =>
+        (await setup.UpdateQuestionAsync(id, questionId, input, Audit.ActorOf(user))).ToOk(QuestionDto.From);
 
     public static async Task<Results<Ok<bool>, ValidationProblem, ProblemHttpResult>> RemoveQuestion(
-        int id, int questionId, PanelWorkflow workflow, ClaimsPrincipal user) =>
-        (await workflow.RemoveQuestionAsync(id, questionId, Audit.ActorOf(user))).ToOk(b => b);
+        int id, int questionId, PanelSetup setup, ClaimsPrincipal user) =>
+        (await setup.RemoveQuestionAsync(id, questionId, Audit.ActorOf(user))).ToOk(b => b);
 
     public static async Task<Results<Ok<List<MembershipDto>>, ProblemHttpResult>> ListMembers(int id, PanelRoundDbContext db)
     {
@@ -112,32 +112,32 @@ public static class PanelsApi
     }
 
     public static async Task<Results<Created<LinkDto>, ValidationProblem, ProblemHttpResult>> AddMember(
-        int id, MemberInput input, PanelWorkflow workflow, ClaimsPrincipal user, HttpRequest request)
+        int id, MemberInput input, Memberships memberships, ClaimsPrincipal user, HttpRequest request)
     {
         var baseUrl = ApiResults.BaseUrl(request);
-        return (await workflow.AddMemberAsync(id, input.ExpertId, Audit.ActorOf(user), baseUrl, input.SendInvitation))
+        return (await memberships.AddMemberAsync(id, input.ExpertId, Audit.ActorOf(user), baseUrl, input.SendInvitation))
             .ToCreated(l => new LinkDto(l.MembershipId, l.PanelCode, l.Token, baseUrl + l.Path), l => $"/api/panels/{id}/members/{l.MembershipId}");
     }
 
     public static async Task<Results<Ok<LinkDto>, ValidationProblem, ProblemHttpResult>> ReissueLink(
-        int id, int membershipId, ReissueInput? input, PanelWorkflow workflow, ClaimsPrincipal user, HttpRequest request)
+        int id, int membershipId, ReissueInput? input, Memberships memberships, ClaimsPrincipal user, HttpRequest request)
     {
         var baseUrl = ApiResults.BaseUrl(request);
-        return (await workflow.ReissueLinkAsync(id, membershipId, Audit.ActorOf(user), baseUrl, input?.SendInvitation ?? true))
+        return (await memberships.ReissueLinkAsync(id, membershipId, Audit.ActorOf(user), baseUrl, input?.SendInvitation ?? true))
             .ToOk(l => new LinkDto(l.MembershipId, l.PanelCode, l.Token, baseUrl + l.Path));
     }
 
     public static async Task<Results<Ok<bool>, ValidationProblem, ProblemHttpResult>> RevokeLink(
-        int id, int membershipId, PanelWorkflow workflow, ClaimsPrincipal user) =>
-        (await workflow.RevokeLinkAsync(id, membershipId, Audit.ActorOf(user))).ToOk(b => b);
+        int id, int membershipId, Memberships memberships, ClaimsPrincipal user) =>
+        (await memberships.RevokeLinkAsync(id, membershipId, Audit.ActorOf(user))).ToOk(b => b);
 
     public static async Task<Results<Created<RoundDto>, ValidationProblem, ProblemHttpResult>> OpenRound(
-        int id, OpenRoundInput input, PanelWorkflow workflow, ClaimsPrincipal user) =>
-        (await workflow.OpenRoundAsync(id, input.ClosesAt, Audit.ActorOf(user))).ToCreated(RoundDto.From, r => $"/api/panels/{id}/rounds/{r.Number}");
+        int id, OpenRoundInput input, RoundLifecycle rounds, ClaimsPrincipal user) =>
+        (await rounds.OpenRoundAsync(id, input.ClosesAt, Audit.ActorOf(user))).ToCreated(RoundDto.From, r => $"/api/panels/{id}/rounds/{r.Number}");
 
     public static async Task<Results<Ok<RoundDto>, ValidationProblem, ProblemHttpResult>> CloseRound(
-        int id, int number, PanelWorkflow workflow, ClaimsPrincipal user) =>
-        (await workflow.CloseRoundAsync(id, number, Audit.ActorOf(user))).ToOk(RoundDto.From);
+        int id, int number, RoundLifecycle rounds, ClaimsPrincipal user) =>
+        (await rounds.CloseRoundAsync(id, number, Audit.ActorOf(user))).ToOk(RoundDto.From);
 
     public static async Task<Results<Ok<TrackerDto>, ProblemHttpResult>> GetTracker(int id, int number, PanelRoundDbContext db)
     {
@@ -154,10 +154,10 @@ public static class PanelsApi
     }
 
     public static async Task<Results<Ok<MailReport>, ValidationProblem, ProblemHttpResult>> SendReminders(
-        int id, PanelWorkflow workflow, ClaimsPrincipal user) =>
-        (await workflow.SendRemindersAsync(id, Audit.ActorOf(user))).ToOk(n => n);
+        int id, Memberships memberships, ClaimsPrincipal user) =>
+        (await memberships.SendRemindersAsync(id, Audit.ActorOf(user))).ToOk(n => n);
 
     public static async Task<Results<Ok<List<ConsensusDto>>, ValidationProblem, ProblemHttpResult>> Conclude(
-        int id, PanelWorkflow workflow, ClaimsPrincipal user) =>
-        (await workflow.ConcludeAsync(id, Audit.ActorOf(user))).ToOk(list => list.Select(ConsensusDto.From).ToList());
+        int id, RoundLifecycle rounds, ClaimsPrincipal user) =>
+        (await rounds.ConcludeAsync(id, Audit.ActorOf(user))).ToOk(list => list.Select(ConsensusDto.From).ToList());
 }

@@ -20,7 +20,7 @@ public sealed class ConsensusPublisher(PanelRoundDbContext db, TimeProvider cloc
     /// <param name="known">Track-record weights the caller has computed already (as of the panel's conclusion, or now); loaded when null.</param>
     public async Task<IReadOnlyList<ConsensusEntry>> ComputeAsync(Panel panel, Round round, ConsensusWeighting? weighting = null, MemberWeightsByFormat? known = null)
     {
-        var answers = await PanelWorkflow.CountedAnswersAsync(db, round.Id);
+        var answers = await CountedAnswers.LoadAsync(db, round.Id);
         var settings = FeedbackCalculator.SettingsOf(panel.Settings);
         var mode = weighting ?? panel.Settings.Weighting;
         var memberWeights = mode == ConsensusWeighting.TrackRecord

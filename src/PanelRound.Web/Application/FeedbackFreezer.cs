@@ -16,7 +16,7 @@ public static class FeedbackFreezer
     /// <param name="db">The unit of work.</param>
     /// <param name="roundId">The closed round.</param>
     /// <param name="questions">The panel's questions.</param>
-    /// <param name="answers">The answers that count in the round (<see cref="PanelWorkflow.CountedAnswersAsync"/>).</param>
+    /// <param name="answers">The answers that count in the round (<see cref="CountedAnswers.LoadAsync"/>).</param>
     /// <param name="panelSettings">The panel's settings: outlier rule, trim, minimum group size, whether rationales are shown.</param>
     public static void Freeze(PanelRoundDbContext db, int roundId, IEnumerable<Question> questions, IReadOnlyList<CountedAnswer> answers, PanelSettings panelSettings)
     {

@@ -8,9 +8,6 @@ namespace PanelRound.Web.Application;
 
 public sealed record MailMessageData(string ToAddress, string ToName, string Subject, string Body);
 
-/// <summary>How many messages of a batch (reminders) were sent, and how many failed (each audited).</summary>
-public sealed record MailReport(int Sent, int Failed);
-
 /// <summary>
 /// Email addresses as the mailer reads them, so that the roster accepts exactly the addresses that
 /// mail can be sent to.

@@ -41,9 +41,9 @@ public sealed class PanelResults(PanelRoundDbContext db)
         var answersByRound = new Dictionary<int, ILookup<(int, string), CountedAnswer>>();
         foreach (var r in rounds)
         {
-            answersByRound[r.Number] = (await PanelWorkflow.CountedAnswersAsync(db, r.Id)).ToLookup(a => (a.QuestionId, a.Period));
+            answersByRound[r.Number] = (await CountedAnswers.LoadAsync(db, r.Id)).ToLookup(a => (a.QuestionId, a.Period));
         }
-        var references = await Catalog.ReferenceSeriesAsync(db, panel.Questions.Select(q => q.IndicatorId).Distinct().ToList(), panel.StartsOn);
+        var references = await IndicatorCatalog.ReferenceSeriesAsync(db, panel.Questions.Select(q => q.IndicatorId).Distinct().ToList(), panel.StartsOn);
         var frozen = (await db.RoundFeedback.AsNoTracking().Where(f => rounds.Select(r => r.Id).Contains(f.RoundId)).ToListAsync())
             .ToDictionary(f => (f.RoundId, f.QuestionId, f.Period));
         var consensus = await db.Consensus.AsNoTracking().Where(c => c.PanelId == panelId).ToListAsync();
@@ -79,14 +79,14 @@ public sealed class PanelResults(PanelRoundDbContext db)
                 var suggestion = last is null ? null : StopAdvice.Suggest(last.Convergence, last.Stability, last.Round, panel.Settings.RoundCap);
                 periods.Add(new PeriodResult(period, list, suggestion, consensus.FirstOrDefault(c => c.QuestionId == q.Id && c.Period == period)));
             }
-            var (reason, text) = Summarise(periods);
+            var stop = StopAdvice.ForQuestion([.. periods.Select(p => new PeriodStop(p.Period, p.Suggestion))]);
             var latestFrozen = rounds.Where(r => r.State == RoundState.Closed).MaxBy(r => r.Number);
             var rationales = latestFrozen is null ? [] : q.TargetPeriods.Split(',')
                 .Select(p => frozen.GetValueOrDefault((latestFrozen.Id, q.Id, p)))
                 .Where(f => f is not null && !f.Withheld)
                 .SelectMany(f => JsonSerializer.Deserialize<List<string>>(f!.RationalesJson) ?? []).Distinct().Order(StringComparer.Ordinal).ToList();
             var reference = references[q.IndicatorId].ToList();
-            questions.Add(new QuestionResult(q.Id, q.Label, q.Format, q.Indicator!.UnitLabel, q.Indicator.Decimals, reference, periods, reason, text, rationales));
+            questions.Add(new QuestionResult(q.Id, q.Label, q.Format, q.Indicator!.UnitLabel, q.Indicator.Decimals, reference, periods, stop.Reason, stop.Explanation, rationales));
         }
         return new PanelResultsView(panel.Id, panel.Title, panel.State, panel.Settings, questions);
     }
@@ -101,29 +101,5 @@ public sealed class PanelResults(PanelRoundDbContext db)
             return [];
         }
         return usable.Where((_, i) => f.IsOutlier[i]).Select(a => codes.GetValueOrDefault(a.MembershipId, "?")).Order(StringComparer.Ordinal).ToList();
-    }
-
-    /// <summary>A question stops when all its periods may stop; the weakest period's reason is the question's.</summary>
-    private static (StopReason, string) Summarise(IReadOnlyList<PeriodResult> periods)
-    {
-        var suggestions = periods.Select(p => p.Suggestion).Where(s => s is not null).Select(s => s!).ToList();
-        if (suggestions.Count == 0)
-        {
-            return (StopReason.KeepGoing, "No round has answers yet.");
-        }
-        if (suggestions.All(s => s.Reason == StopReason.ConsensusReached))
-        {
-            return (StopReason.ConsensusReached, "Consensus reached in every target period.");
-        }
-        if (suggestions.All(s => s.Reason is StopReason.ConsensusReached or StopReason.Stable))
-        {
-            return (StopReason.Stable, "Every target period has reached consensus or stable answers.");
-        }
-        if (suggestions.Any(s => s.Reason == StopReason.RoundCapReached))
-        {
-            return (StopReason.RoundCapReached, "The round cap is reached.");
-        }
-        var open = periods.Where(p => p.Suggestion?.Reason == StopReason.KeepGoing).Select(p => p.Period);
-        return (StopReason.KeepGoing, "Another round may help for " + string.Join(", ", open) + ".");
     }
 }

@@ -58,7 +58,7 @@ public sealed class RoundDeadlineService(IServiceScopeFactory scopes, Microsoft.
         }
         var due = await db.Rounds.AsNoTracking().Where(r => r.State == RoundState.Open && r.ClosesAt <= now)
             .Select(r => new { r.Id, r.PanelId, r.Number }).ToListAsync(ct);
-        var workflow = scope.ServiceProvider.GetRequiredService<PanelWorkflow>();
+        var workflow = scope.ServiceProvider.GetRequiredService<RoundLifecycle>();
         var closed = 0;
         foreach (var r in due)
         {

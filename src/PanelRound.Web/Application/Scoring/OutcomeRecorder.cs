@@ -13,9 +13,9 @@ public sealed record OutcomeInput(string? Indicator, string? Period, double? Val
 /// correction: history kept, audited as <c>observation.corrected</c>). Several indicators at
 /// once are all-or-nothing in one transaction. An outcome is of a period that has ended; the day it
 /// became known (<c>observedOn</c>) lies between the period's end and today; values are within
-/// ±10¹² (<see cref="Figures.MaxMagnitude"/>).
+/// ±10¹² (<see cref="Numbers.MaxMagnitude"/>).
 /// </summary>
-public sealed class OutcomeRecorder(PanelRoundDbContext db, Catalog catalog, TimeProvider clock)
+public sealed class OutcomeRecorder(PanelRoundDbContext db, IndicatorCatalog catalog, TimeProvider clock)
 {
     /// <summary>Records one outcome from the form; errors are keyed by field (indicator, period, value, source, observedOn).</summary>
     public Task<Outcome<ObservationImportResult>> RecordAsync(OutcomeInput input, string actor) =>
@@ -96,11 +96,11 @@ public sealed class OutcomeRecorder(PanelRoundDbContext db, Catalog catalog, Tim
             {
                 errors.Add(keyOf(i, "value"), label + "The value must be a number.");
             }
-            else if (!Figures.InBounds(v))
+            else if (!Numbers.InBounds(v))
             {
-                errors.Add(keyOf(i, "value"), label + "The value " + Figures.OutOfBoundsMessage);
+                errors.Add(keyOf(i, "value"), label + "The value " + Numbers.OutOfBoundsMessage);
             }
-            if (Catalog.ObservedOnError(period, o.ObservedOn, today) is { } dateError)
+            if (ObservationDates.ObservedOnError(period, o.ObservedOn, today) is { } dateError)
             {
                 errors.Add(keyOf(i, "observedOn"), label + dateError);
             }

@@ -60,7 +60,7 @@ public sealed record ScoringData(
 /// <summary>
 /// Builds the core's scored items from the database: for each concluded panel, each expert's
 /// counted answer (the latest submitted one; a link revoked before the round closed excluded, as
-/// in <see cref="PanelWorkflow.AnswersCount"/>) of every closed round,
+/// in <see cref="AnswerCounting.AnswersCount"/>) of every closed round,
 /// set against the current observation of the question's indicator at the target period.
 /// </summary>
 /// <remarks>
@@ -154,10 +154,9 @@ public sealed class ScoringService(PanelRoundDbContext db)
 
         var experts = new Dictionary<string, ScoredExpert>(StringComparer.Ordinal);
         var items = new List<ScoredItem>();
-        var counted = estimates
-            .Where(e => memberships.TryGetValue(e.MembershipId, out var m) && PanelWorkflow.AnswersCount(m.State, m.RevokedAt, e.RoundClosedAt))
-            .GroupBy(e => (e.RoundId, e.MembershipId, e.QuestionId, e.Period))
-            .Select(g => g.MaxBy(e => e.Id)!);
+        var counted = AnswerCounting.LatestRevisions(
+            estimates.Where(e => memberships.TryGetValue(e.MembershipId, out var m) && AnswerCounting.AnswersCount(m.State == MembershipState.Revoked, m.RevokedAt, e.RoundClosedAt)),
+            e => (e.RoundId, e.MembershipId, e.QuestionId, e.Period), e => e.Id);
         foreach (var e in counted)
         {
             if (!questionsById.TryGetValue(e.QuestionId, out var pq) || pq.Panel.Id != e.PanelId
@@ -235,13 +234,4 @@ public sealed class ScoringService(PanelRoundDbContext db)
 public static class Figures
 {
     public static double? Finite(double? value) => value is { } v && double.IsFinite(v) ? v : null;
-
-    /// <summary>The largest magnitude accepted for any number (<see cref="Core.Domain.Numbers.MaxMagnitude"/>, one limit for every input).</summary>
-    public const double MaxMagnitude = Core.Domain.Numbers.MaxMagnitude;
-
-    /// <summary>True when the value is finite and within <see cref="MaxMagnitude"/>.</summary>
-    public static bool InBounds(double value) => Core.Domain.Numbers.InBounds(value);
-
-    /// <summary>The message for a value out of bounds.</summary>
-    public const string OutOfBoundsMessage = Core.Domain.Numbers.OutOfBoundsMessage;
 }

@@ -9,7 +9,7 @@ using PanelRound.Web.Infrastructure;
 namespace PanelRound.Web.Pages.Staff.Indicators;
 
 [WritePolicy(AuthSetup.FacilitatorPolicy)]
-public class IndexModel(PanelRoundDbContext db, Catalog catalog) : PageModel
+public class IndexModel(PanelRoundDbContext db, IndicatorCatalog catalog) : PageModel
 {
     public sealed class IndicatorForm
     {
