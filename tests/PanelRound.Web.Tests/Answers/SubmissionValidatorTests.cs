@@ -1,6 +1,6 @@
 using PanelRound.Core.Statistics;
 using PanelRound.Data.Entities;
-using PanelRound.Web.Application;
+using PanelRound.Web.Features.Answers;
 
 namespace PanelRound.Web.Tests.Answers;
 

@@ -1,5 +1,4 @@
 using System.Text;
-using PanelRound.Web.Application;
 using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Tests.Defects;

@@ -1,6 +1,6 @@
 using System.Text;
 using PanelRound.Core.Domain;
-using PanelRound.Web.Application.Scoring;
+using PanelRound.Web.Features.Imports;
 
 namespace PanelRound.Web.Tests.Imports;
 

@@ -3,7 +3,7 @@ using Microsoft.AspNetCore.Mvc;
 using Microsoft.AspNetCore.Mvc.RazorPages;
 using PanelRound.Core.Domain;
 using PanelRound.Data;
-using PanelRound.Web.Application;
+using PanelRound.Web.Features.Answers;
 using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Pages.Answer;

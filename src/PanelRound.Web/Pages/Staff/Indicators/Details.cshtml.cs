@@ -4,7 +4,7 @@ using Microsoft.AspNetCore.Mvc.RazorPages;
 using Microsoft.EntityFrameworkCore;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
-using PanelRound.Web.Application;
+using PanelRound.Web.Features.Indicators;
 using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Pages.Staff.Indicators;

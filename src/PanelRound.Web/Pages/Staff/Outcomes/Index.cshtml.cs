@@ -5,8 +5,9 @@ using Microsoft.AspNetCore.Mvc.RazorPages;
 using Microsoft.EntityFrameworkCore;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
-using PanelRound.Web.Application;
-using PanelRound.Web.Application.Scoring;
+using PanelRound.Web.Features.Indicators;
+using PanelRound.Web.Features.Outcomes;
+using PanelRound.Web.Features.Scorecard;
 using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Pages.Staff.Outcomes;

@@ -4,8 +4,10 @@ using Microsoft.AspNetCore.Mvc.RazorPages;
 using Microsoft.EntityFrameworkCore;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
-using PanelRound.Web.Apis;
-using PanelRound.Web.Application;
+using PanelRound.Web.Features.Panels;
+using PanelRound.Web.Features.Results;
+using PanelRound.Web.Features.Roster;
+using PanelRound.Web.Features.Rounds;
 using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Pages.Staff.Panels;
@@ -13,7 +15,7 @@ namespace PanelRound.Web.Pages.Staff.Panels;
 /// <summary>The facilitator's panel page: questions, roster and links, rounds with the response tracker, conclusion.</summary>
 [Authorize(Policy = AuthSetup.FacilitatorPolicy)]
 [WritePolicy(AuthSetup.FacilitatorPolicy)]
-public class DetailsModel(PanelRoundDbContext db, PanelSetup setup, Memberships memberships, RoundLifecycle rounds) : PageModel
+public class DetailsModel(PanelRoundDbContext db, PanelSetup setup, Memberships memberships, RoundLifecycle rounds, PanelConclusion conclusion) : PageModel
 {
     [BindProperty(SupportsGet = true)]
     public int Id { get; set; }
@@ -89,7 +91,7 @@ public class DetailsModel(PanelRoundDbContext db, PanelSetup setup, Memberships 
     }
 
     public async Task<IActionResult> OnPostConcludeAsync() =>
-        await Done(await rounds.ConcludeAsync(Id, Audit.ActorOf(User)), "Panel concluded; the consensus is published.");
+        await Done(await conclusion.ConcludeAsync(Id, Audit.ActorOf(User)), "Panel concluded; the consensus is published.");
 
     private async Task<IActionResult> LinkResult(Outcome<IssuedLink> outcome)
     {

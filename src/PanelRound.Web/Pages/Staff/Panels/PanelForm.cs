@@ -1,6 +1,6 @@
 using System.ComponentModel.DataAnnotations;
 using PanelRound.Data.Entities;
-using PanelRound.Web.Application;
+using PanelRound.Web.Features.Panels;
 
 namespace PanelRound.Web.Pages.Staff.Panels;
 
