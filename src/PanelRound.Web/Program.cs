@@ -1,6 +1,18 @@
 using PanelRound.Data;
 using PanelRound.Web;
 using PanelRound.Web.Commands;
+using PanelRound.Web.Features;
+using PanelRound.Web.Features.Account;
+using PanelRound.Web.Features.Admin;
+using PanelRound.Web.Features.Answers;
+using PanelRound.Web.Features.Imports;
+using PanelRound.Web.Features.Indicators;
+using PanelRound.Web.Features.Outcomes;
+using PanelRound.Web.Features.Panels;
+using PanelRound.Web.Features.Results;
+using PanelRound.Web.Features.Roster;
+using PanelRound.Web.Features.Rounds;
+using PanelRound.Web.Features.Scorecard;
 using PanelRound.Web.Infrastructure;
 
 var command = AdminCommands.CommandOf(args);
@@ -10,6 +22,7 @@ builder.AddPanelRoundData();
 builder.AddPanelRoundAuth();
 builder.AddPanelRoundHealth();
 builder.AddPanelRoundWeb();
+builder.AddPanelRoundFeatures();
 
 var app = builder.Build();
 
@@ -22,7 +35,21 @@ await app.PrepareDatabaseAsync();
 
 app.UsePanelRoundPipeline();
 app.MapPanelRoundHealth();
-app.MapPanelRoundApis();
+
+// The JSON API, one class per feature (Features/<Feature>/<Feature>Api.cs).
+app.MapAccountApi();
+app.MapIndicatorsApi();
+app.MapRosterApi();
+app.MapPanelsApi();
+app.MapRoundsApi();
+app.MapExpertApi();
+app.MapResultsApi();
+app.MapOutcomesApi();
+app.MapScorecardApi();
+app.MapImportsApi();
+app.MapAuditApi();
+
+// The pages (Pages/<Area>/<Page>.cshtml), their logic in the same features.
 app.MapRazorPages();
 
 await app.RunAsync();

@@ -1,7 +1,4 @@
 using PanelRound.Data;
-using PanelRound.Web.Apis;
-using PanelRound.Web.Application;
-using PanelRound.Web.Application.Scoring;
 using PanelRound.Web.Demo;
 using PanelRound.Web.Infrastructure;
 
@@ -28,16 +25,7 @@ public static class WebSetup
         });
         services.AddOptions<DemoOptions>().BindConfiguration(DemoOptions.Section).ValidateOnStart();
         services.AddOptions<MailOptions>().BindConfiguration(MailOptions.Section).ValidateOnStart();
-        services.AddOptions<RoundOptions>().BindConfiguration(RoundOptions.Section).ValidateOnStart();
-        services.AddScoped<Catalog>();
-        services.AddScoped<PanelWorkflow>();
-        services.AddScoped<ConsensusPublisher>();
-        services.AddScoped<ExpertAnswers>();
-        services.AddScoped<PanelResults>();
-        services.AddPanelRoundScoring();
         services.AddSingleton<IMailer, Mailer>();
-        services.AddSingleton<RoundDeadlineService>();
-        services.AddHostedService(sp => sp.GetRequiredService<RoundDeadlineService>());
         return builder;
     }
 
@@ -80,16 +68,4 @@ public static class WebSetup
         app.MapOpenApi("/openapi/{documentName}.json");
         return app;
     }
-
-    public static IEndpointRouteBuilder MapPanelRoundApis(this IEndpointRouteBuilder app)
-    {
-        app.MapAccountApi();
-        app.MapCatalogApi();
-        app.MapPanelsApi();
-        app.MapExpertApi();
-        app.MapAuditApi();
-        app.MapScoringApis();
-        return app;
-    }
-
 }

@@ -24,6 +24,16 @@ public enum StopReason
 /// <param name="Explanation">One short English sentence with the figures behind the suggestion.</param>
 public sealed record StopSuggestion(StopReason Reason, bool ShouldStop, string Explanation);
 
+/// <summary>One target period of a question with the stop suggestion of its latest round (null before any round has answers).</summary>
+/// <param name="Period">The target period, as shown.</param>
+/// <param name="Suggestion">Its suggestion.</param>
+public sealed record PeriodStop(string Period, StopSuggestion? Suggestion);
+
+/// <summary>A question's stop suggestion over all its target periods.</summary>
+/// <param name="Reason">The reason that holds for the question.</param>
+/// <param name="Explanation">One short English sentence for the facilitator.</param>
+public sealed record QuestionStop(StopReason Reason, string Explanation);
+
 /// <summary>Suggests whether a question needs another round.</summary>
 /// <remarks>
 /// The criteria are checked in this order and the first that holds is reported: consensus
@@ -83,5 +93,37 @@ public static class StopAdvice
             StopReason.KeepGoing,
             false,
             string.Format(c, "Keep going: {0}; round {1} of at most {2}.", dispersion, roundNumber, roundCap));
+    }
+
+    /// <summary>A question's suggestion: it may stop when every target period may stop; otherwise the weakest period's reason is the question's.</summary>
+    /// <param name="periods">The question's target periods with their suggestions, in the order they are shown.</param>
+    /// <remarks>
+    /// In order: no period with a suggestion keeps going ("no round has answers yet"); consensus in
+    /// every period is consensus; consensus or stability in every period is stability; otherwise a
+    /// round cap reached in any period ends the question; otherwise another round is suggested for
+    /// the periods that keep going.
+    /// </remarks>
+    public static QuestionStop ForQuestion(IReadOnlyList<PeriodStop> periods)
+    {
+        ArgumentNullException.ThrowIfNull(periods);
+        var suggestions = periods.Select(p => p.Suggestion).OfType<StopSuggestion>().ToList();
+        if (suggestions.Count == 0)
+        {
+            return new QuestionStop(StopReason.KeepGoing, "No round has answers yet.");
+        }
+        if (suggestions.All(s => s.Reason == StopReason.ConsensusReached))
+        {
+            return new QuestionStop(StopReason.ConsensusReached, "Consensus reached in every target period.");
+        }
+        if (suggestions.All(s => s.Reason is StopReason.ConsensusReached or StopReason.Stable))
+        {
+            return new QuestionStop(StopReason.Stable, "Every target period has reached consensus or stable answers.");
+        }
+        if (suggestions.Any(s => s.Reason == StopReason.RoundCapReached))
+        {
+            return new QuestionStop(StopReason.RoundCapReached, "The round cap is reached.");
+        }
+        var open = periods.Where(p => p.Suggestion?.Reason == StopReason.KeepGoing).Select(p => p.Period);
+        return new QuestionStop(StopReason.KeepGoing, "Another round may help for " + string.Join(", ", open) + ".");
     }
 }

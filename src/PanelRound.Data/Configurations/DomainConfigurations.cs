@@ -1,5 +1,6 @@
 using Microsoft.EntityFrameworkCore;
 using Microsoft.EntityFrameworkCore.Metadata.Builders;
+using PanelRound.Core.Domain;
 using PanelRound.Data.Entities;
 
 namespace PanelRound.Data.Configurations;
@@ -8,11 +9,11 @@ internal sealed class IndicatorConfiguration : IEntityTypeConfiguration<Indicato
 {
     public void Configure(EntityTypeBuilder<Indicator> b)
     {
-        b.Property(x => x.Key).HasMaxLength(100).IsRequired();
+        b.Property(x => x.Key).HasMaxLength(FieldLengths.IndicatorKey).IsRequired();
         b.HasIndex(x => x.Key).IsUnique();
-        b.Property(x => x.Name).HasMaxLength(300).IsRequired();
-        b.Property(x => x.UnitLabel).HasMaxLength(50).IsRequired();
-        b.Property(x => x.Description).HasMaxLength(4000);
+        b.Property(x => x.Name).HasMaxLength(FieldLengths.Title).IsRequired();
+        b.Property(x => x.UnitLabel).HasMaxLength(FieldLengths.UnitLabel).IsRequired();
+        b.Property(x => x.Description).HasMaxLength(FieldLengths.Description);
         b.HasMany(x => x.Observations).WithOne(x => x.Indicator).HasForeignKey(x => x.IndicatorId).OnDelete(DeleteBehavior.Restrict);
     }
 }
@@ -21,9 +22,9 @@ internal sealed class ObservationConfiguration : IEntityTypeConfiguration<Observ
 {
     public void Configure(EntityTypeBuilder<Observation> b)
     {
-        b.Property(x => x.Period).HasMaxLength(10).IsRequired();
-        b.Property(x => x.Source).HasMaxLength(500);
-        b.Property(x => x.RecordedBy).HasMaxLength(256);
+        b.Property(x => x.Period).HasMaxLength(FieldLengths.Period).IsRequired();
+        b.Property(x => x.Source).HasMaxLength(FieldLengths.Source);
+        b.Property(x => x.RecordedBy).HasMaxLength(FieldLengths.Actor);
         b.HasIndex(x => new { x.IndicatorId, x.PeriodSortKey, x.SupersededAt });
     }
 }
@@ -32,11 +33,11 @@ internal sealed class PanelConfiguration : IEntityTypeConfiguration<Panel>
 {
     public void Configure(EntityTypeBuilder<Panel> b)
     {
-        b.Property(x => x.Title).HasMaxLength(300).IsRequired();
-        b.Property(x => x.Brief).HasMaxLength(20000);
-        b.Property(x => x.TargetPeriods).HasMaxLength(500).IsRequired();
-        b.Property(x => x.CreatedBy).HasMaxLength(256);
-        b.Property(x => x.ExternalKey).HasMaxLength(200);
+        b.Property(x => x.Title).HasMaxLength(FieldLengths.Title).IsRequired();
+        b.Property(x => x.Brief).HasMaxLength(FieldLengths.Brief);
+        b.Property(x => x.TargetPeriods).HasMaxLength(FieldLengths.TargetPeriods).IsRequired();
+        b.Property(x => x.CreatedBy).HasMaxLength(FieldLengths.Actor);
+        b.Property(x => x.ExternalKey).HasMaxLength(FieldLengths.ExternalKey);
         b.HasIndex(x => x.ExternalKey).IsUnique();
         b.Property(x => x.Version).IsConcurrencyToken();
         b.ComplexProperty(x => x.Settings);
@@ -50,9 +51,9 @@ internal sealed class QuestionConfiguration : IEntityTypeConfiguration<Question>
 {
     public void Configure(EntityTypeBuilder<Question> b)
     {
-        b.Property(x => x.Label).HasMaxLength(300).IsRequired();
-        b.Property(x => x.HelpText).HasMaxLength(4000);
-        b.Property(x => x.TargetPeriods).HasMaxLength(500).IsRequired();
+        b.Property(x => x.Label).HasMaxLength(FieldLengths.Title).IsRequired();
+        b.Property(x => x.HelpText).HasMaxLength(FieldLengths.Description);
+        b.Property(x => x.TargetPeriods).HasMaxLength(FieldLengths.TargetPeriods).IsRequired();
         b.HasOne(x => x.Indicator).WithMany().HasForeignKey(x => x.IndicatorId).OnDelete(DeleteBehavior.Restrict);
     }
 }
@@ -61,13 +62,13 @@ internal sealed class ExpertConfiguration : IEntityTypeConfiguration<Expert>
 {
     public void Configure(EntityTypeBuilder<Expert> b)
     {
-        b.Property(x => x.Name).HasMaxLength(200).IsRequired();
-        b.Property(x => x.Email).HasMaxLength(256).IsRequired();
+        b.Property(x => x.Name).HasMaxLength(FieldLengths.Name).IsRequired();
+        b.Property(x => x.Email).HasMaxLength(FieldLengths.Email).IsRequired();
         b.HasIndex(x => x.Email).IsUnique();
-        b.Property(x => x.Affiliation).HasMaxLength(200);
-        b.Property(x => x.Expertise).HasMaxLength(500);
-        b.Property(x => x.DeclaredInterests).HasMaxLength(2000);
-        b.Property(x => x.ExternalKey).HasMaxLength(200);
+        b.Property(x => x.Affiliation).HasMaxLength(FieldLengths.Affiliation);
+        b.Property(x => x.Expertise).HasMaxLength(FieldLengths.Expertise);
+        b.Property(x => x.DeclaredInterests).HasMaxLength(FieldLengths.DeclaredInterests);
+        b.Property(x => x.ExternalKey).HasMaxLength(FieldLengths.ExternalKey);
         b.HasIndex(x => x.ExternalKey).IsUnique();
         b.HasMany(x => x.Memberships).WithOne(x => x.Expert).HasForeignKey(x => x.ExpertId).OnDelete(DeleteBehavior.Restrict);
     }
@@ -78,9 +79,9 @@ internal sealed class MembershipConfiguration : IEntityTypeConfiguration<PanelMe
     public void Configure(EntityTypeBuilder<PanelMembership> b)
     {
         b.ToTable("Memberships");
-        b.Property(x => x.PanelCode).HasMaxLength(20).IsRequired();
+        b.Property(x => x.PanelCode).HasMaxLength(FieldLengths.PanelCode).IsRequired();
         b.HasIndex(x => x.PanelCode).IsUnique();
-        b.Property(x => x.TokenHash).HasMaxLength(64).IsRequired();
+        b.Property(x => x.TokenHash).HasMaxLength(FieldLengths.Hash).IsRequired();
         b.HasIndex(x => x.TokenHash).IsUnique();
         b.HasIndex(x => new { x.PanelId, x.ExpertId }).IsUnique();
     }
@@ -91,7 +92,7 @@ internal sealed class RoundConfiguration : IEntityTypeConfiguration<Round>
     public void Configure(EntityTypeBuilder<Round> b)
     {
         b.HasIndex(x => new { x.PanelId, x.Number }).IsUnique();
-        b.Property(x => x.ClosedBy).HasMaxLength(256);
+        b.Property(x => x.ClosedBy).HasMaxLength(FieldLengths.Actor);
         b.Property(x => x.Version).IsConcurrencyToken();
         b.HasMany(x => x.Feedback).WithOne(x => x.Round).HasForeignKey(x => x.RoundId).OnDelete(DeleteBehavior.Cascade);
     }
@@ -101,7 +102,7 @@ internal sealed class RoundFeedbackConfiguration : IEntityTypeConfiguration<Roun
 {
     public void Configure(EntityTypeBuilder<RoundFeedback> b)
     {
-        b.Property(x => x.Period).HasMaxLength(10).IsRequired();
+        b.Property(x => x.Period).HasMaxLength(FieldLengths.Period).IsRequired();
         b.HasIndex(x => new { x.RoundId, x.QuestionId, x.Period }).IsUnique();
         b.HasOne<Question>().WithMany().HasForeignKey(x => x.QuestionId).OnDelete(DeleteBehavior.Restrict);
     }
@@ -111,8 +112,8 @@ internal sealed class EstimateConfiguration : IEntityTypeConfiguration<Estimate>
 {
     public void Configure(EntityTypeBuilder<Estimate> b)
     {
-        b.Property(x => x.Period).HasMaxLength(10).IsRequired();
-        b.Property(x => x.Rationale).HasMaxLength(4000);
+        b.Property(x => x.Period).HasMaxLength(FieldLengths.Period).IsRequired();
+        b.Property(x => x.Rationale).HasMaxLength(FieldLengths.RationaleColumn);
         b.HasIndex(x => new { x.RoundId, x.QuestionId, x.Period, x.MembershipId });
         b.HasIndex(x => new { x.MembershipId, x.RoundId });
         b.HasOne<Round>().WithMany().HasForeignKey(x => x.RoundId).OnDelete(DeleteBehavior.Restrict);
@@ -126,8 +127,8 @@ internal sealed class ConsensusConfiguration : IEntityTypeConfiguration<Consensu
     public void Configure(EntityTypeBuilder<ConsensusEntry> b)
     {
         b.ToTable("Consensus");
-        b.Property(x => x.Period).HasMaxLength(10).IsRequired();
-        b.Property(x => x.Method).HasMaxLength(100).IsRequired();
+        b.Property(x => x.Period).HasMaxLength(FieldLengths.Period).IsRequired();
+        b.Property(x => x.Method).HasMaxLength(FieldLengths.ConsensusMethod).IsRequired();
         b.HasIndex(x => new { x.PanelId, x.QuestionId, x.Period }).IsUnique();
         b.HasOne<Panel>().WithMany().HasForeignKey(x => x.PanelId).OnDelete(DeleteBehavior.Cascade);
         b.HasOne<Question>().WithMany().HasForeignKey(x => x.QuestionId).OnDelete(DeleteBehavior.Restrict);

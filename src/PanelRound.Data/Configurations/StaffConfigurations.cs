@@ -1,24 +1,25 @@
 using Microsoft.EntityFrameworkCore;
 using Microsoft.EntityFrameworkCore.Metadata.Builders;
+using PanelRound.Core.Domain;
 using PanelRound.Data.Entities;
 
 namespace PanelRound.Data.Configurations;
 
 internal sealed class StaffUserConfiguration : IEntityTypeConfiguration<StaffUser>
 {
-    public void Configure(EntityTypeBuilder<StaffUser> b) => b.Property(x => x.DisplayName).HasMaxLength(200);
+    public void Configure(EntityTypeBuilder<StaffUser> b) => b.Property(x => x.DisplayName).HasMaxLength(FieldLengths.Name);
 }
 
 internal sealed class ApiKeyConfiguration : IEntityTypeConfiguration<ApiKey>
 {
     public void Configure(EntityTypeBuilder<ApiKey> b)
     {
-        b.Property(x => x.Name).HasMaxLength(200).IsRequired();
-        b.Property(x => x.KeyHash).HasMaxLength(64).IsRequired();
+        b.Property(x => x.Name).HasMaxLength(FieldLengths.Name).IsRequired();
+        b.Property(x => x.KeyHash).HasMaxLength(FieldLengths.Hash).IsRequired();
         b.HasIndex(x => x.KeyHash).IsUnique();
         b.Property(x => x.Prefix).HasMaxLength(16).IsRequired();
         b.Property(x => x.Role).HasMaxLength(50).IsRequired();
-        b.Property(x => x.CreatedBy).HasMaxLength(256);
+        b.Property(x => x.CreatedBy).HasMaxLength(FieldLengths.Actor);
     }
 }
 
@@ -26,7 +27,7 @@ internal sealed class AuditEventConfiguration : IEntityTypeConfiguration<AuditEv
 {
     public void Configure(EntityTypeBuilder<AuditEvent> b)
     {
-        b.Property(x => x.Actor).HasMaxLength(256).IsRequired();
+        b.Property(x => x.Actor).HasMaxLength(FieldLengths.Actor).IsRequired();
         b.Property(x => x.Action).HasMaxLength(100).IsRequired();
         b.Property(x => x.EntityType).HasMaxLength(100).IsRequired();
         b.Property(x => x.EntityId).HasMaxLength(100).IsRequired();

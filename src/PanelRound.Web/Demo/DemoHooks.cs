@@ -1,6 +1,7 @@
 using PanelRound.Data;
 using PanelRound.Data.Entities;
-using PanelRound.Web.Application;
+using PanelRound.Web.Features.Results;
+using PanelRound.Web.Features.Rounds;
 
 namespace PanelRound.Web.Demo;
 
@@ -14,14 +15,12 @@ internal static class DemoHooks
     public static async Task CompleteAsync(IServiceProvider services, Panel panel, DemoPanel plan)
     {
         var db = services.GetRequiredService<PanelRoundDbContext>();
-        var mailer = services.GetRequiredService<IMailer>();
         var weights = services.GetRequiredService<IMemberWeights>();
-        var log = services.GetRequiredService<ILogger<PanelWorkflow>>();
         foreach (var r in plan.Rounds.Where(r => r.Closed).OrderBy(r => r.Number))
         {
             var round = panel.Rounds.Single(x => x.Number == r.Number);
             var at = new FixedClock(round.ClosesAt);
-            var outcome = await new PanelWorkflow(db, at, mailer, new ConsensusPublisher(db, at, weights), log).CloseRoundAsync(panel.Id, r.Number, "demo");
+            var outcome = await new RoundLifecycle(db, at).CloseRoundAsync(panel.Id, r.Number, "demo");
             if (!outcome.IsOk)
             {
                 throw new InvalidOperationException($"Demo: closing round {r.Number} of {plan.Key} failed: {outcome.Message}");
@@ -30,7 +29,7 @@ internal static class DemoHooks
         if (plan.Concluded)
         {
             var at = new FixedClock(panel.Rounds.Max(r => r.ClosesAt).AddDays(2));
-            var outcome = await new PanelWorkflow(db, at, mailer, new ConsensusPublisher(db, at, weights), log).ConcludeAsync(panel.Id, "demo");
+            var outcome = await new PanelConclusion(db, at, new ConsensusPublisher(db, at, weights)).ConcludeAsync(panel.Id, "demo");
             if (!outcome.IsOk)
             {
                 throw new InvalidOperationException($"Demo: concluding {plan.Key} failed: {outcome.Message}");

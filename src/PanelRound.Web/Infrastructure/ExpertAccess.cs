@@ -4,7 +4,6 @@ using Microsoft.AspNetCore.Authentication;
 using Microsoft.EntityFrameworkCore;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
-using PanelRound.Web.Application;
 
 namespace PanelRound.Web.Infrastructure;
 
@@ -23,7 +22,7 @@ public static class ExpertAccess
     {
         if (ctx.Request.Headers.TryGetValue(TokenHeader, out var token) && !string.IsNullOrWhiteSpace(token))
         {
-            return await ExpertAnswers.ResolveTokenAsync(db, token.ToString());
+            return await ResolveTokenAsync(db, token.ToString());
         }
         var auth = await ctx.AuthenticateAsync(AuthSetup.ExpertScheme);
         if (!auth.Succeeded
@@ -34,6 +33,12 @@ public static class ExpertAccess
         var stamp = auth.Principal.FindFirstValue(StampClaim);
         return await db.Memberships.FirstOrDefaultAsync(m => m.Id == id && m.TokenHash == stamp && m.State != MembershipState.Revoked);
     }
+
+    /// <summary>The membership a token opens, or null for an unknown or revoked token.</summary>
+    public static Task<PanelMembership?> ResolveTokenAsync(PanelRoundDbContext db, string? token) =>
+        string.IsNullOrWhiteSpace(token)
+            ? Task.FromResult<PanelMembership?>(null)
+            : db.Memberships.FirstOrDefaultAsync(m => m.TokenHash == Secrets.Hash(token.Trim()) && m.State != MembershipState.Revoked);
 
     /// <summary>Exchanges a valid link for the expert cookie.</summary>
     public static Task SignInAsync(HttpContext ctx, PanelMembership m) =>

@@ -1,6 +1,6 @@
 using System.Globalization;
 using Microsoft.AspNetCore.Mvc.ModelBinding;
-using PanelRound.Web.Application;
+using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Pages;
 

@@ -1,5 +1,4 @@
 using System.Text;
-using PanelRound.Web.Application.Scoring;
 using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Tests.Defects;
@@ -187,7 +186,7 @@ public sealed class CsvReaderTests
     [InlineData("-1e12", -1e12)]
     public void ParseNumber_InvariantDecimals_AreRead(string text, double expected)
     {
-        var value = OutcomeRecorder.ParseNumber(text, out var error);
+        var value = CsvUploads.ParseNumber(text, out var error);
 
         Assert.Null(error);
         Assert.Equal(expected, value);
@@ -210,7 +209,7 @@ public sealed class CsvReaderTests
     [InlineData("-2e12")]
     public void ParseNumber_AnythingElse_IsAnErrorWithAMessage(string text)
     {
-        var value = OutcomeRecorder.ParseNumber(text, out var error);
+        var value = CsvUploads.ParseNumber(text, out var error);
 
         Assert.Null(value);
         Assert.False(string.IsNullOrWhiteSpace(error));

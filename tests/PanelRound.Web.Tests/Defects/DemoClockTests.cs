@@ -10,7 +10,6 @@ using Microsoft.Extensions.DependencyInjection;
 using PanelRound.Core.Domain;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
-using PanelRound.Web.Application;
 using PanelRound.Web.Infrastructure;
 using PanelRound.Web.Tests.Infrastructure;
 
@@ -59,7 +58,7 @@ public abstract class DemoClockTests(IDatabaseFixture fixture) : ProviderTests(f
         {
             var period = Period.Parse(o.Period);
             Assert.True(period.EndDate < today, $"{o.Indicator!.Key} {o.Period} has a value on {today:yyyy-MM-dd}, before the period ends.");
-            Assert.Null(Catalog.ObservedOnError(period, o.ObservedOn, today));
+            Assert.Null(ObservationDates.ObservedOnError(period, o.ObservedOn, today));
             Assert.True(o.RecordedAt <= now, $"{o.Indicator!.Key} {o.Period} recorded at {o.RecordedAt:O}, after {now:O}.");
         }
 

@@ -2,7 +2,7 @@ using System.Net;
 using System.Text.Json;
 using System.Text.Json.Nodes;
 using PanelRound.Data.Entities;
-using PanelRound.Web.Application;
+using PanelRound.Web.Features.Rounds;
 using PanelRound.Web.Tests.Infrastructure;
 
 namespace PanelRound.Web.Tests.Defects;

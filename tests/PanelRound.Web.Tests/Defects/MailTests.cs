@@ -3,7 +3,7 @@ using System.Net;
 using Microsoft.EntityFrameworkCore;
 using Microsoft.Extensions.DependencyInjection;
 using PanelRound.Data.Entities;
-using PanelRound.Web.Application;
+using PanelRound.Web.Infrastructure;
 using PanelRound.Web.Tests.Infrastructure;
 
 namespace PanelRound.Web.Tests.Defects;

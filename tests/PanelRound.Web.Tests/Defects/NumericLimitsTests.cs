@@ -3,7 +3,7 @@ using System.Text.Json.Nodes;
 using Microsoft.EntityFrameworkCore;
 using Microsoft.Extensions.DependencyInjection;
 using PanelRound.Data.Entities;
-using PanelRound.Web.Application;
+using PanelRound.Web.Features.Rounds;
 using PanelRound.Web.Tests.Infrastructure;
 
 namespace PanelRound.Web.Tests.Defects;

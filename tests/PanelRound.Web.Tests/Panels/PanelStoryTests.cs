@@ -415,7 +415,7 @@ public abstract class PanelStoryTests(IDatabaseFixture fixture) : ProviderTests(
             r.ClosesAt = DateTime.UtcNow.AddMinutes(-1);
             await db.SaveChangesAsync();
         });
-        var service = s.App.Services.GetRequiredService<PanelRound.Web.Application.RoundDeadlineService>();
+        var service = s.App.Services.GetRequiredService<PanelRound.Web.Features.Rounds.RoundDeadlineService>();
         Assert.Equal(1, await service.CloseDueRoundsAsync());
         var feedback = (await s.Staff.GetOk($"/api/panels/{s.PanelId}/rounds/1/feedback")).AsArray();
         Assert.Equal(15, feedback.Count);

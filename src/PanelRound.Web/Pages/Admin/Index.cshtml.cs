@@ -1,6 +1,7 @@
 using Microsoft.AspNetCore.Mvc;
 using Microsoft.AspNetCore.Mvc.RazorPages;
 using Microsoft.EntityFrameworkCore;
+using PanelRound.Core.Domain;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
 using PanelRound.Web.Infrastructure;
@@ -42,7 +43,7 @@ public class IndexModel(PanelRoundDbContext db) : PageModel
 
     public async Task<IActionResult> OnPostCreateKeyAsync()
     {
-        if (string.IsNullOrWhiteSpace(KeyName) || KeyName.Length > 200 || !Roles.All.Contains(KeyRole))
+        if (string.IsNullOrWhiteSpace(KeyName) || KeyName.Length > FieldLengths.Name || !Roles.All.Contains(KeyRole))
         {
             Error = "Give the key a name (at most 200 characters) and one of the roles.";
             await OnGetAsync();

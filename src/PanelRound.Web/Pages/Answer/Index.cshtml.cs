@@ -3,7 +3,7 @@ using Microsoft.AspNetCore.Mvc;
 using Microsoft.AspNetCore.Mvc.RazorPages;
 using PanelRound.Core.Domain;
 using PanelRound.Data;
-using PanelRound.Web.Application;
+using PanelRound.Web.Features.Answers;
 using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Pages.Answer;
@@ -46,9 +46,6 @@ public class IndexModel(PanelRoundDbContext db, ExpertAnswers answers) : PageMod
     public DecimalSeparator Separator => Decimals == "comma" ? DecimalSeparator.Comma : DecimalSeparator.Point;
 
     public ExpertForm Form { get; private set; } = null!;
-
-    /// <summary>Field errors keyed like the service's (<c>answers[0].periods[1].value</c>), plus the form-wide ones under "".</summary>
-    public Dictionary<string, string[]> Errors { get; } = new(StringComparer.OrdinalIgnoreCase);
 
     public IReadOnlyList<string> Warnings { get; private set; } = [];
 
@@ -100,15 +97,21 @@ public class IndexModel(PanelRoundDbContext db, ExpertAnswers answers) : PageMod
         }
         Decimals = Decimals is "comma" or "point" ? Decimals : DefaultSeparator(Request.Headers.AcceptLanguage.ToString());
         var draft = action == "draft";
-        foreach (var (key, entry) in ModelState.Where(kv => kv.Value?.Errors.Count > 0))
+        // A field the form could not bind (a confidence that is not a number) is a choice that is not valid.
+        foreach (var entry in ModelState.Values.Where(e => e.Errors.Count > 0))
         {
-            Errors[key] = entry!.Errors.Select(e => "Not a valid choice.").ToArray();
+            var count = entry.Errors.Count;
+            entry.Errors.Clear();
+            for (var i = 0; i < count; i++)
+            {
+                entry.Errors.Add("Not a valid choice.");
+            }
         }
         var input = new SubmissionInput(draft, Answers.Select((a, qi) => new QuestionAnswerInput(a.QuestionId, a.Confidence, a.Rationale,
             a.Periods.Select((p, pi) => new PeriodAnswerInput(p.Period,
                 Read(p.Value, $"answers[{qi}].periods[{pi}].value"), Read(p.P10, $"answers[{qi}].periods[{pi}].p10"),
                 Read(p.P50, $"answers[{qi}].periods[{pi}].p50"), Read(p.P90, $"answers[{qi}].periods[{pi}].p90"))).ToList())).ToList());
-        if (Errors.Count == 0)
+        if (ModelState.ErrorCount == 0)
         {
             var outcome = await answers.SubmitAsync(m.Id, input);
             if (outcome.IsOk)
@@ -118,17 +121,16 @@ public class IndexModel(PanelRoundDbContext db, ExpertAnswers answers) : PageMod
                 SavedWarnings = string.Join('\n', r.Warnings);
                 return RedirectToPage(new { decimals = Decimals });
             }
-            foreach (var (k, v) in outcome.Errors)
-            {
-                Errors[k] = v;
-            }
+            ModelState.AddOutcome(outcome, "");
             Conflict = outcome.Kind == OutcomeKind.Conflict ? outcome.Message : null;
         }
         Form = await answers.GetFormAsync(m.Id);
         return Page();
     }
 
-    public string? ErrorFor(string key) => Errors.TryGetValue(key, out var e) ? string.Join(" ", e) : null;
+    /// <summary>The errors beside a field, keyed like the submission's (<c>answers[0].periods[1].value</c>; model-state keys ignore case), or null.</summary>
+    public string? ErrorFor(string key) =>
+        ModelState.TryGetValue(key, out var entry) && entry.Errors.Count > 0 ? string.Join(" ", entry.Errors.Select(e => e.ErrorMessage)) : null;
 
     /// <summary>Reads one typed number; an unreadable one is an error beside its field and nothing is saved.</summary>
     private double? Read(string? text, string field)
@@ -142,7 +144,7 @@ public class IndexModel(PanelRoundDbContext db, ExpertAnswers answers) : PageMod
         {
             return reading.Value;
         }
-        Errors[field] = [reading.Error!];
+        ModelState.AddModelError(field, reading.Error!);
         return null;
     }
 

@@ -2,7 +2,6 @@ using Microsoft.AspNetCore.Mvc;
 using Microsoft.AspNetCore.Mvc.RazorPages;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
-using PanelRound.Web.Application;
 using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Pages.Answer;
@@ -17,7 +16,7 @@ public class LinkModel(PanelRoundDbContext db, TimeProvider clock) : PageModel
     {
         Response.Headers["Referrer-Policy"] = "no-referrer";
         Response.Headers.CacheControl = "no-store";
-        var m = await ExpertAnswers.ResolveTokenAsync(db, token);
+        var m = await ExpertAccess.ResolveTokenAsync(db, token);
         if (m is null)
         {
             return RedirectToPage("LinkNeeded", new { reason = "unknown" });

@@ -4,7 +4,7 @@ using Microsoft.AspNetCore.Mvc.RazorPages;
 using Microsoft.EntityFrameworkCore;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
-using PanelRound.Web.Application;
+using PanelRound.Web.Features.Roster;
 using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Pages.Staff.Experts;
@@ -12,7 +12,7 @@ namespace PanelRound.Web.Pages.Staff.Experts;
 /// <summary>The roster: the one staff view with experts' names next to their panels.</summary>
 [Authorize(Policy = AuthSetup.FacilitatorPolicy)]
 [WritePolicy(AuthSetup.FacilitatorPolicy)]
-public class IndexModel(PanelRoundDbContext db, Catalog catalog) : PageModel
+public class IndexModel(PanelRoundDbContext db, ExpertRoster roster) : PageModel
 {
     public sealed class ExpertForm
     {
@@ -37,7 +37,7 @@ public class IndexModel(PanelRoundDbContext db, Catalog catalog) : PageModel
 
     public async Task<IActionResult> OnPostAsync()
     {
-        var outcome = await catalog.CreateExpertAsync(new ExpertInput(Input.Name, Input.Email, Input.Affiliation, Input.Expertise, Input.DeclaredInterests), Audit.ActorOf(User));
+        var outcome = await roster.CreateExpertAsync(new ExpertInput(Input.Name, Input.Email, Input.Affiliation, Input.Expertise, Input.DeclaredInterests), Audit.ActorOf(User));
         if (!outcome.IsOk)
         {
             ModelState.AddOutcome(outcome);

@@ -3,7 +3,8 @@ using Microsoft.AspNetCore.Authorization;
 using Microsoft.AspNetCore.Mvc;
 using Microsoft.AspNetCore.Mvc.RazorPages;
 using Microsoft.Extensions.Options;
-using PanelRound.Web.Application.Scoring;
+using PanelRound.Web.Features.Imports;
+using PanelRound.Web.Features.Scorecard;
 using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Pages.Staff.Imports;

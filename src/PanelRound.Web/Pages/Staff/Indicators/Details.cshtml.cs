@@ -4,14 +4,14 @@ using Microsoft.AspNetCore.Mvc.RazorPages;
 using Microsoft.EntityFrameworkCore;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
-using PanelRound.Web.Application;
+using PanelRound.Web.Features.Indicators;
 using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Pages.Staff.Indicators;
 
 /// <summary>An indicator's observations: chart, table, correction history, and entry by form, paste or CSV upload.</summary>
 [WritePolicy(AuthSetup.FacilitatorPolicy)]
-public class DetailsModel(PanelRoundDbContext db, Catalog catalog) : PageModel
+public class DetailsModel(PanelRoundDbContext db, IndicatorCatalog catalog) : PageModel
 {
     [BindProperty(SupportsGet = true)]
     public int Id { get; set; }
@@ -58,7 +58,7 @@ public class DetailsModel(PanelRoundDbContext db, Catalog catalog) : PageModel
         }
         await using (stream)
         {
-            var parsed = Catalog.ParseObservationCsv(stream);
+            var parsed = ObservationCsv.Parse(stream);
             var outcome = parsed.IsOk
                 ? await catalog.RecordObservationsAsync(Id, parsed.Value!, Audit.ActorOf(User), "row")
                 : parsed.As<ObservationImportResult>();

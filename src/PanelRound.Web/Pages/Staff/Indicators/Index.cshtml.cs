@@ -3,13 +3,13 @@ using Microsoft.AspNetCore.Mvc.RazorPages;
 using Microsoft.EntityFrameworkCore;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
-using PanelRound.Web.Application;
+using PanelRound.Web.Features.Indicators;
 using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Pages.Staff.Indicators;
 
 [WritePolicy(AuthSetup.FacilitatorPolicy)]
-public class IndexModel(PanelRoundDbContext db, Catalog catalog) : PageModel
+public class IndexModel(PanelRoundDbContext db, IndicatorCatalog catalog) : PageModel
 {
     public sealed class IndicatorForm
     {

@@ -5,8 +5,9 @@ using Microsoft.AspNetCore.Mvc.RazorPages;
 using Microsoft.EntityFrameworkCore;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
-using PanelRound.Web.Application;
-using PanelRound.Web.Application.Scoring;
+using PanelRound.Web.Features.Indicators;
+using PanelRound.Web.Features.Outcomes;
+using PanelRound.Web.Features.Scorecard;
 using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Pages.Staff.Outcomes;
@@ -56,13 +57,7 @@ public class IndexModel(PanelRoundDbContext db, OutcomeRecorder recorder, Scorin
         var result = await recorder.RecordAsync(new OutcomeInput(Input.Indicator, Input.Period, Input.Value, Input.Source, Input.ObservedOn), Audit.ActorOf(User));
         if (!result.IsOk)
         {
-            foreach (var (field, messages) in result.Errors)
-            {
-                foreach (var m in messages)
-                {
-                    ModelState.AddModelError($"{nameof(Input)}.{char.ToUpperInvariant(field[0])}{field[1..]}", m);
-                }
-            }
+            ModelState.AddOutcome(result);
             await LoadAsync();
             return Page();
         }

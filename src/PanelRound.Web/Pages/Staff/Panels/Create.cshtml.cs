@@ -1,14 +1,14 @@
 using Microsoft.AspNetCore.Authorization;
 using Microsoft.AspNetCore.Mvc;
 using Microsoft.AspNetCore.Mvc.RazorPages;
-using PanelRound.Web.Application;
+using PanelRound.Web.Features.Panels;
 using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Pages.Staff.Panels;
 
 [Authorize(Policy = AuthSetup.FacilitatorPolicy)]
 [WritePolicy(AuthSetup.FacilitatorPolicy)]
-public class CreateModel(PanelWorkflow workflow) : PageModel
+public class CreateModel(PanelSetup setup) : PageModel
 {
     [BindProperty]
     public PanelForm Input { get; set; } = new() { TargetPeriods = $"{DateTime.UtcNow.Year + 1}-{DateTime.UtcNow.Year + 5}", StartsOn = DateOnly.FromDateTime(DateTime.UtcNow) };
@@ -19,7 +19,7 @@ public class CreateModel(PanelWorkflow workflow) : PageModel
 
     public async Task<IActionResult> OnPostAsync()
     {
-        var outcome = await workflow.CreatePanelAsync(Input.ToInput(), Audit.ActorOf(User));
+        var outcome = await setup.CreatePanelAsync(Input.ToInput(), Audit.ActorOf(User));
         if (!outcome.IsOk)
         {
             ModelState.AddOutcome(outcome);

@@ -4,8 +4,10 @@ using Microsoft.AspNetCore.Mvc.RazorPages;
 using Microsoft.EntityFrameworkCore;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
-using PanelRound.Web.Apis;
-using PanelRound.Web.Application;
+using PanelRound.Web.Features.Panels;
+using PanelRound.Web.Features.Results;
+using PanelRound.Web.Features.Roster;
+using PanelRound.Web.Features.Rounds;
 using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Pages.Staff.Panels;
@@ -13,7 +15,7 @@ namespace PanelRound.Web.Pages.Staff.Panels;
 /// <summary>The facilitator's panel page: questions, roster and links, rounds with the response tracker, conclusion.</summary>
 [Authorize(Policy = AuthSetup.FacilitatorPolicy)]
 [WritePolicy(AuthSetup.FacilitatorPolicy)]
-public class DetailsModel(PanelRoundDbContext db, PanelWorkflow workflow) : PageModel
+public class DetailsModel(PanelRoundDbContext db, PanelSetup setup, Memberships memberships, RoundLifecycle rounds, PanelConclusion conclusion) : PageModel
 {
     [BindProperty(SupportsGet = true)]
     public int Id { get; set; }
@@ -54,7 +56,7 @@ public class DetailsModel(PanelRoundDbContext db, PanelWorkflow workflow) : Page
         Roster = await db.Experts.AsNoTracking().Where(e => !members.Contains(e.Id)).OrderBy(e => e.Name).ToListAsync();
         if (OpenRound is { } open)
         {
-            var answered = await db.Estimates.AsNoTracking().Where(e => e.RoundId == open.Id && !e.IsDraft).Select(e => e.MembershipId).Distinct().ToListAsync();
+            var answered = await RoundResponses.AnsweredAsync(db, open.Id);
             Responded = panel.Memberships.ToDictionary(m => m.Id, m => answered.Contains(m.Id));
             CloseFailure = await RoundDeadlineService.LatestFailureAsync(db, panel.Id, open.Id);
         }
@@ -63,33 +65,33 @@ public class DetailsModel(PanelRoundDbContext db, PanelWorkflow workflow) : Page
     }
 
     public async Task<IActionResult> OnPostAddMemberAsync(int expertId) =>
-        await LinkResult(await workflow.AddMemberAsync(Id, expertId, Audit.ActorOf(User), ApiResults.BaseUrl(Request)));
+        await LinkResult(await memberships.AddMemberAsync(Id, expertId, Audit.ActorOf(User), ApiResults.BaseUrl(Request)));
 
     public async Task<IActionResult> OnPostReissueAsync(int membershipId) =>
-        await LinkResult(await workflow.ReissueLinkAsync(Id, membershipId, Audit.ActorOf(User), ApiResults.BaseUrl(Request)));
+        await LinkResult(await memberships.ReissueLinkAsync(Id, membershipId, Audit.ActorOf(User), ApiResults.BaseUrl(Request)));
 
     public async Task<IActionResult> OnPostRevokeAsync(int membershipId) =>
-        await Done(await workflow.RevokeLinkAsync(Id, membershipId, Audit.ActorOf(User)), "Link revoked.");
+        await Done(await memberships.RevokeLinkAsync(Id, membershipId, Audit.ActorOf(User)), "Link revoked.");
 
     public async Task<IActionResult> OnPostRemoveQuestionAsync(int questionId) =>
-        await Done(await workflow.RemoveQuestionAsync(Id, questionId, Audit.ActorOf(User)), "Question removed.");
+        await Done(await setup.RemoveQuestionAsync(Id, questionId, Audit.ActorOf(User)), "Question removed.");
 
     public async Task<IActionResult> OnPostOpenRoundAsync() =>
-        await Done(await workflow.OpenRoundAsync(Id, ClosesAt is { } c ? DateTime.SpecifyKind(c, DateTimeKind.Utc) : null, Audit.ActorOf(User)), "Round opened.");
+        await Done(await rounds.OpenRoundAsync(Id, ClosesAt is { } c ? DateTime.SpecifyKind(c, DateTimeKind.Utc) : null, Audit.ActorOf(User)), "Round opened.");
 
     public async Task<IActionResult> OnPostCloseRoundAsync(int number) =>
-        await Done(await workflow.CloseRoundAsync(Id, number, Audit.ActorOf(User)), $"Round {number} closed; its feedback is frozen.");
+        await Done(await rounds.CloseRoundAsync(Id, number, Audit.ActorOf(User)), $"Round {number} closed; its feedback is frozen.");
 
     public async Task<IActionResult> OnPostRemindAsync()
     {
-        var outcome = await workflow.SendRemindersAsync(Id, Audit.ActorOf(User));
+        var outcome = await memberships.SendRemindersAsync(Id, Audit.ActorOf(User));
         return await Done(outcome, outcome.Value is { Failed: > 0 } r
             ? $"Reminders sent: {r.Sent}; {r.Failed} could not be sent (recorded in the audit log as mail.failed)."
             : $"Reminders sent: {outcome.Value?.Sent}.");
     }
 
     public async Task<IActionResult> OnPostConcludeAsync() =>
-        await Done(await workflow.ConcludeAsync(Id, Audit.ActorOf(User)), "Panel concluded; the consensus is published.");
+        await Done(await conclusion.ConcludeAsync(Id, Audit.ActorOf(User)), "Panel concluded; the consensus is published.");
 
     private async Task<IActionResult> LinkResult(Outcome<IssuedLink> outcome)
     {

@@ -3,14 +3,14 @@ using Microsoft.AspNetCore.Mvc;
 using Microsoft.AspNetCore.Mvc.RazorPages;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
-using PanelRound.Web.Application;
+using PanelRound.Web.Features.Panels;
 using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Pages.Staff.Panels;
 
 [Authorize(Policy = AuthSetup.FacilitatorPolicy)]
 [WritePolicy(AuthSetup.FacilitatorPolicy)]
-public class EditModel(PanelRoundDbContext db, PanelWorkflow workflow) : PageModel
+public class EditModel(PanelRoundDbContext db, PanelSetup setup) : PageModel
 {
     [BindProperty(SupportsGet = true)]
     public int Id { get; set; }
@@ -35,7 +35,7 @@ public class EditModel(PanelRoundDbContext db, PanelWorkflow workflow) : PageMod
 
     public async Task<IActionResult> OnPostAsync()
     {
-        var outcome = await workflow.UpdatePanelAsync(Id, Input.ToInput(), Audit.ActorOf(User));
+        var outcome = await setup.UpdatePanelAsync(Id, Input.ToInput(), Audit.ActorOf(User));
         if (!outcome.IsOk)
         {
             ModelState.AddOutcome(outcome);

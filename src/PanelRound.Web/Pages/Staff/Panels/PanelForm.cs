@@ -1,6 +1,6 @@
 using System.ComponentModel.DataAnnotations;
 using PanelRound.Data.Entities;
-using PanelRound.Web.Application;
+using PanelRound.Web.Features.Panels;
 
 namespace PanelRound.Web.Pages.Staff.Panels;
 
@@ -21,25 +21,28 @@ public sealed class PanelForm
 
     public SettingsForm Settings { get; set; } = new();
 
+    /// <summary>The settings as the form edits them; a new form starts from the defaults of <see cref="PanelSettings"/>, their one home.</summary>
     public sealed class SettingsForm
     {
-        public OutlierRuleSetting OutlierRule { get; set; } = OutlierRuleSetting.TukeyFences;
+        private static readonly PanelSettings Defaults = new();
 
-        public double TrimFraction { get; set; } = 0.10;
+        public OutlierRuleSetting OutlierRule { get; set; } = Defaults.OutlierRule;
 
-        public double ConsensusThreshold { get; set; } = 0.10;
+        public double TrimFraction { get; set; } = Defaults.TrimFraction;
 
-        public double StabilityThreshold { get; set; } = 0.15;
+        public double ConsensusThreshold { get; set; } = Defaults.ConsensusThreshold;
 
-        public int RoundCap { get; set; } = 3;
+        public double StabilityThreshold { get; set; } = Defaults.StabilityThreshold;
 
-        public int MinimumGroupSize { get; set; } = 3;
+        public int RoundCap { get; set; } = Defaults.RoundCap;
 
-        public bool ShowRationales { get; set; } = true;
+        public int MinimumGroupSize { get; set; } = Defaults.MinimumGroupSize;
 
-        public bool OutliersMustJustify { get; set; } = true;
+        public bool ShowRationales { get; set; } = Defaults.ShowRationales;
 
-        public ConsensusWeighting Weighting { get; set; } = ConsensusWeighting.Equal;
+        public bool OutliersMustJustify { get; set; } = Defaults.OutliersMustJustify;
+
+        public ConsensusWeighting Weighting { get; set; } = Defaults.Weighting;
     }
 
     public PanelInput ToInput() => new(Title, Brief, StartsOn, TargetPeriods, new PanelSettingsInput(

@@ -4,14 +4,14 @@ using Microsoft.AspNetCore.Mvc.RazorPages;
 using Microsoft.EntityFrameworkCore;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
-using PanelRound.Web.Application;
+using PanelRound.Web.Features.Panels;
 using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Pages.Staff.Panels;
 
 [Authorize(Policy = AuthSetup.FacilitatorPolicy)]
 [WritePolicy(AuthSetup.FacilitatorPolicy)]
-public class QuestionModel(PanelRoundDbContext db, PanelWorkflow workflow) : PageModel
+public class QuestionModel(PanelRoundDbContext db, PanelSetup setup) : PageModel
 {
     public sealed class QuestionForm
     {
@@ -71,8 +71,8 @@ public class QuestionModel(PanelRoundDbContext db, PanelWorkflow workflow) : Pag
         var input = new QuestionInput(Input.IndicatorId, Input.Label, Input.HelpText, Input.Format.ToString(), Input.HardMin, Input.HardMax,
             Input.PlausibleMin, Input.PlausibleMax, Input.TargetPeriods);
         var outcome = QuestionId is { } id
-            ? await workflow.UpdateQuestionAsync(PanelId, id, input, Audit.ActorOf(User))
-            : await workflow.AddQuestionAsync(PanelId, input, Audit.ActorOf(User));
+            ? await setup.UpdateQuestionAsync(PanelId, id, input, Audit.ActorOf(User))
+            : await setup.AddQuestionAsync(PanelId, input, Audit.ActorOf(User));
         if (!outcome.IsOk)
         {
             ModelState.AddOutcome(outcome);

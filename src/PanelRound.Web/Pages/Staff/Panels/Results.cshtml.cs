@@ -1,7 +1,7 @@
 using Microsoft.AspNetCore.Mvc;
 using Microsoft.AspNetCore.Mvc.RazorPages;
-using PanelRound.Web.Application;
-using PanelRound.Web.Application.Scoring;
+using PanelRound.Web.Features.Results;
+using PanelRound.Web.Features.Scorecard;
 
 namespace PanelRound.Web.Pages.Staff.Panels;
 

@@ -4,7 +4,7 @@ using System.Text;
 using Microsoft.AspNetCore.Html;
 using PanelRound.Core.Domain;
 using PanelRound.Core.Scoring;
-using PanelRound.Web.Application.Scoring;
+using PanelRound.Web.Features.Scorecard;
 
 namespace PanelRound.Web.Pages.Staff.Scorecard;
 

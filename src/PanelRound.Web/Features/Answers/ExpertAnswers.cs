@@ -1,0 +1,151 @@
+using System.Text.Json;
+using Microsoft.EntityFrameworkCore;
+using PanelRound.Data;
+using PanelRound.Data.Entities;
+using PanelRound.Web.Features.Indicators;
+using PanelRound.Web.Features.Rounds;
+using PanelRound.Web.Infrastructure;
+
+namespace PanelRound.Web.Features.Answers;
+
+public sealed record SubmissionReceipt(int Round, int Saved, bool Draft, DateTime At, IReadOnlyList<string> Warnings);
+
+/// <summary>
+/// The expert's side: the form behind a personal link, and submissions (drafts, submits,
+/// revisions; each a new row, the latest counting), refused with field-level errors or, for a
+/// closed round, a conflict.
+/// </summary>
+public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
+{
+    private DateTime Now => clock.GetUtcNow().UtcDateTime;
+
+    public async Task<ExpertForm> GetFormAsync(int membershipId)
+    {
+        var m = await db.Memberships.AsNoTracking().SingleAsync(x => x.Id == membershipId);
+        var panel = await db.Panels.AsNoTracking().Include(p => p.Questions).ThenInclude(q => q.Indicator).Include(p => p.Rounds).SingleAsync(p => p.Id == m.PanelId);
+        var (round, canAnswer, reason) = Status(panel);
+        // The feedback shown is the previous round's: round k-1 while round k is open, else the last closed round's.
+        var feedbackRound = round is { State: RoundState.Open }
+            ? panel.Rounds.FirstOrDefault(r => r.Number == round.Number - 1 && r.State == RoundState.Closed)
+            : panel.Rounds.Where(r => r.State == RoundState.Closed).MaxBy(r => r.Number);
+        var frozen = feedbackRound is null ? [] : await db.RoundFeedback.AsNoTracking().Where(f => f.RoundId == feedbackRound.Id).ToListAsync();
+        var own = await db.Estimates.AsNoTracking().Where(e => e.MembershipId == m.Id).ToListAsync();
+        var currentRows = round is null ? [] : own.Where(e => e.RoundId == round.Id).ToList();
+        var previousRound = round is null ? null : panel.Rounds.FirstOrDefault(r => r.Number == round.Number - 1);
+        var previousRows = previousRound is null ? [] : own.Where(e => e.RoundId == previousRound.Id && !e.IsDraft).ToList();
+
+        var references = await IndicatorCatalog.ReferenceSeriesAsync(db, panel.Questions.Select(q => q.IndicatorId).Distinct().ToList(), panel.StartsOn);
+        var questions = new List<ExpertQuestion>();
+        foreach (var q in panel.Questions.OrderBy(q => q.Order))
+        {
+            var reference = references[q.IndicatorId].ToList();
+            var periods = new List<ExpertPeriod>();
+            IReadOnlyList<string> rationales = [];
+            foreach (var period in q.TargetPeriods.Split(','))
+            {
+                var current = currentRows.Where(e => e.QuestionId == q.Id && e.Period == period).MaxBy(e => e.Id);
+                var previous = previousRows.Where(e => e.QuestionId == q.Id && e.Period == period).MaxBy(e => e.Id);
+                var fb = frozen.FirstOrDefault(f => f.QuestionId == q.Id && f.Period == period);
+                if (fb is not null && rationales.Count == 0 && !fb.Withheld)
+                {
+                    rationales = JsonSerializer.Deserialize<List<string>>(fb.RationalesJson) ?? [];
+                }
+                periods.Add(new ExpertPeriod(period, Values(current), current?.IsDraft ?? false, Values(previous), fb is null ? null : GroupFeedback.From(FeedbackView.FromJson(fb.StatisticsJson))));
+            }
+            var latest = currentRows.Where(e => e.QuestionId == q.Id).MaxBy(e => e.Id) ?? previousRows.Where(e => e.QuestionId == q.Id).MaxBy(e => e.Id);
+            questions.Add(new ExpertQuestion(q.Id, q.Label, q.HelpText, q.Format, q.Indicator!.UnitLabel, q.Indicator.Decimals,
+                q.HardMin, q.HardMax, q.PlausibleMin, q.PlausibleMax, reference, periods, rationales, latest?.Confidence, latest?.Rationale));
+        }
+        var lastSubmit = currentRows.Where(e => !e.IsDraft).Select(e => (DateTime?)e.CreatedAt).Max();
+        return new ExpertForm(panel.Id, m.Id, m.PanelCode, panel.Title, Markdown.ToSafeHtml(panel.Brief), panel.State,
+            round is null ? null : new RoundInfo(round.Number, round.OpensAt, round.ClosesAt, canAnswer),
+            canAnswer, reason, feedbackRound?.Number, panel.Settings.OutliersMustJustify, lastSubmit, questions);
+    }
+
+    private (Round? Round, bool CanAnswer, string? Reason) Status(Panel panel)
+    {
+        var open = panel.Rounds.FirstOrDefault(r => r.State == RoundState.Open);
+        if (panel.State == PanelState.Concluded)
+        {
+            return (panel.Rounds.MaxBy(r => r.Number), false, $"The panel concluded on {panel.ConcludedAt:yyyy-MM-dd}; its consensus is published and answers are read-only.");
+        }
+        if (open is null)
+        {
+            var last = panel.Rounds.MaxBy(r => r.Number);
+            return last is null
+                ? (null, false, "No round has opened yet.")
+                : (last, false, $"Round {last.Number} closed on {last.ClosedAt:yyyy-MM-dd HH:mm} UTC; answers can no longer be changed. The next round has not opened yet.");
+        }
+        if (Now >= open.ClosesAt)
+        {
+            return (open, false, $"Round {open.Number} reached its deadline ({open.ClosesAt:yyyy-MM-dd HH:mm} UTC); answers can no longer be changed.");
+        }
+        return (open, true, null);
+    }
+
+    private static AnswerValues? Values(Estimate? e) => e is null ? null : new AnswerValues(e.Value, e.P10, e.P50, e.P90);
+
+    /// <summary>Saves a draft or a submission for the membership's open round, all-or-nothing.</summary>
+    /// <remarks>
+    /// Implementation note: the save first updates the round row on the condition that it is
+    /// still open, in the same transaction as the new rows. Closing a round takes the same row
+    /// first (<see cref="RoundLifecycle.CloseRoundAsync"/>), so a submission either lands before the
+    /// close reads the answers or is refused with a conflict: never acknowledged and then missed.
+    /// Submissions only queue behind each other on that row; they do not fail.
+    /// </remarks>
+    public async Task<Outcome<SubmissionReceipt>> SubmitAsync(int membershipId, SubmissionInput input)
+    {
+        db.ChangeTracker.Clear();
+        var m = await db.Memberships.SingleAsync(x => x.Id == membershipId);
+        if (m.State == MembershipState.Revoked)
+        {
+            return Outcome<SubmissionReceipt>.NotFound("This personal link is unknown or has been revoked.");
+        }
+        var panel = await db.Panels.AsNoTracking().Include(p => p.Questions).ThenInclude(q => q.Indicator).Include(p => p.Rounds).SingleAsync(p => p.Id == m.PanelId);
+        var (_, canAnswer, reason) = Status(panel);
+        var round = panel.Rounds.FirstOrDefault(r => r.State == RoundState.Open);
+        if (!canAnswer || round is null)
+        {
+            return Outcome<SubmissionReceipt>.Conflict(reason ?? "No round is open.");
+        }
+        var previous = panel.Rounds.FirstOrDefault(r => r.Number == round.Number - 1);
+        var previousFeedback = previous is null || !panel.Settings.OutliersMustJustify
+            ? []
+            : (await db.RoundFeedback.AsNoTracking().Where(f => f.RoundId == previous.Id && !f.Withheld)
+                    .Select(f => new { f.QuestionId, f.Period, f.StatisticsJson }).ToListAsync())
+                .ToDictionary(f => (f.QuestionId, f.Period), f => FeedbackView.FromJson(f.StatisticsJson).Shown?.Spread);
+        var check = SubmissionValidator.Validate(panel.Questions, input, previousFeedback);
+        if (check.Errors.Any)
+        {
+            return Outcome<SubmissionReceipt>.Invalid(check.Errors);
+        }
+        await using var tx = await db.Database.BeginTransactionAsync();
+        var deadlineCheck = Now;
+        var stillOpen = await db.Rounds.Where(r => r.Id == round.Id && r.State == RoundState.Open && r.ClosesAt > deadlineCheck)
+            .ExecuteUpdateAsync(u => u.SetProperty(r => r.Version, r => r.Version));
+        var stillMember = await db.Memberships.Where(x => x.Id == m.Id && x.State != MembershipState.Revoked && x.TokenHash == m.TokenHash)
+            .ExecuteUpdateAsync(u => u.SetProperty(x => x.LastSeenAt, deadlineCheck)
+                .SetProperty(x => x.State, x => x.State == MembershipState.Invited ? MembershipState.Active : x.State));
+        // Implementation note: the stored time is read only now, while this transaction holds the
+        // round row and the membership row, so the expert's revisions get their times in the same
+        // order as their ids: the revision that counts (the highest id) is the latest in time.
+        var now = Now;
+        if (stillOpen == 0)
+        {
+            return Outcome<SubmissionReceipt>.Conflict($"Round {round.Number} closed; answers can no longer be changed.");
+        }
+        if (stillMember == 0)
+        {
+            return Outcome<SubmissionReceipt>.NotFound("This personal link is unknown or has been revoked.");
+        }
+        var rows = check.Answers.Select(a => new Estimate
+        {
+            RoundId = round.Id, MembershipId = m.Id, QuestionId = a.QuestionId, Period = a.Period, Value = a.Value, P10 = a.P10, P50 = a.P50, P90 = a.P90,
+            Confidence = a.Confidence, Rationale = a.Rationale, IsDraft = input.Draft, CreatedAt = now,
+        }).ToList();
+        db.Estimates.AddRange(rows);
+        await db.SaveChangesAsync();
+        await tx.CommitAsync();
+        return Outcome<SubmissionReceipt>.Ok(new SubmissionReceipt(round.Number, rows.Count, input.Draft, now, check.Warnings));
+    }
+}

@@ -1,0 +1,72 @@
+using PanelRound.Core.Statistics;
+using PanelRound.Data;
+using PanelRound.Data.Entities;
+using PanelRound.Web.Features.Rounds;
+
+namespace PanelRound.Web.Features.Results;
+
+/// <summary>
+/// Computes a panel's consensus per question-period from the answers counted in a closed round:
+/// the trimmed median for Point questions (band Q1-Q3 of the retained answers), quantile
+/// averaging of the experts' P10/P50/P90 for Range questions (band P10-P90), with equal weights
+/// or the panel members' track-record weights (for each question the set of its response format:
+/// scaled absolute error for Point, scaled interval score for Range, as the backtest evaluates them).
+/// </summary>
+public sealed class ConsensusPublisher(PanelRoundDbContext db, TimeProvider clock, IMemberWeights weights)
+{
+    /// <summary>The consensus of each question-period of the round.</summary>
+    /// <param name="panel">The panel, with its questions.</param>
+    /// <param name="round">A closed round of it.</param>
+    /// <param name="weighting">Equal or track-record; default the panel's setting.</param>
+    /// <param name="known">Track-record weights the caller has computed already (as of the panel's conclusion, or now); loaded when null.</param>
+    public async Task<IReadOnlyList<ConsensusEntry>> ComputeAsync(Panel panel, Round round, ConsensusWeighting? weighting = null, MemberWeightsByFormat? known = null)
+    {
+        var answers = await CountedAnswers.LoadAsync(db, round.Id);
+        var settings = FeedbackCalculator.SettingsOf(panel.Settings);
+        var mode = weighting ?? panel.Settings.Weighting;
+        var memberWeights = mode == ConsensusWeighting.TrackRecord
+            ? known ?? await weights.ForPanelAsync(panel.Id, panel.ConcludedAt ?? clock.GetUtcNow().UtcDateTime)
+            : null;
+        var now = clock.GetUtcNow().UtcDateTime;
+        var entries = new List<ConsensusEntry>();
+        foreach (var q in panel.Questions.OrderBy(q => q.Order))
+        {
+            foreach (var period in q.TargetPeriods.Split(','))
+            {
+                var forPeriod = answers.Where(a => a.QuestionId == q.Id && a.Period == period).ToList();
+                if (forPeriod.Count == 0)
+                {
+                    continue;
+                }
+                var set = memberWeights?.For(q.Format);
+                var w = set is null ? null : forPeriod.Select(a => set.GetValueOrDefault(a.MembershipId, 0)).ToList();
+                if (w is not null && w.All(x => x <= 0))
+                {
+                    w = null;
+                }
+                var value = q.Format == ResponseFormat.Range
+                    ? Consensus.ForRange(forPeriod.Select(a => new RangeAnswer(a.P10!.Value, a.P50!.Value, a.P90!.Value)).ToList(), settings, w)
+                    : Consensus.ForPoint(forPeriod.Select(a => a.Value!.Value).ToList(), settings, w);
+                entries.Add(new ConsensusEntry
+                {
+                    PanelId = panel.Id, QuestionId = q.Id, Period = period, Value = value.Value, Low = value.Low, High = value.High,
+                    N = value.N, Method = value.Method.ToString(), PublishedAt = now,
+                });
+            }
+        }
+        return entries;
+    }
+}
+
+/// <summary>Track-record weights of a panel's memberships (by membership id), one set per response format; a set is null when the panel has no question of that format.</summary>
+public sealed record MemberWeightsByFormat(IReadOnlyDictionary<int, double>? Point, IReadOnlyDictionary<int, double>? Range)
+{
+    /// <summary>The set a question of the format uses.</summary>
+    public IReadOnlyDictionary<int, double>? For(ResponseFormat format) => format == ResponseFormat.Range ? Range : Point;
+}
+
+/// <summary>Track-record weights of a panel's memberships, known at a moment; null when none apply.</summary>
+public interface IMemberWeights
+{
+    Task<MemberWeightsByFormat?> ForPanelAsync(int panelId, DateTime asOf);
+}

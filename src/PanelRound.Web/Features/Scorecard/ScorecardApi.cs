@@ -1,0 +1,106 @@
+using Microsoft.AspNetCore.Http.HttpResults;
+using PanelRound.Core.Scoring;
+using PanelRound.Web.Infrastructure;
+
+namespace PanelRound.Web.Features.Scorecard;
+
+/// <summary>The expert scorecard, the backtest of track-record weights, and equal against weighted consensus.</summary>
+public static class ScorecardApi
+{
+    /// <summary>The caution every scorecard answer carries.</summary>
+    public const string Caution =
+        "These are scores of forecasts, not valuations or investment advice; rely on licensed valuers and follow local regulation for any decision.";
+
+    /// <summary>One expert's scores: final-round forecasts; each figure has the n it rests on.</summary>
+    /// <remarks>
+    /// n of each figure: <c>n</c> for MAE, mean error and RMSE; <c>nMape</c>; <c>nScaled</c> for the scaled MAE, the scaled mean error
+    /// and the bias; <c>nRange</c> for coverage and interval score; <c>nRangeScaled</c> for the scaled interval score; <c>nScaledNaive</c>
+    /// for skill; <c>nPaired</c> for the round-1-to-final change; <c>weightN</c> for the weight and <c>rangeWeightN</c> for the range weight.
+    /// A figure that is not a finite number is null.
+    /// </remarks>
+    public sealed record ScorecardExpertDto(
+        string Expert, int N, double? Mae, double? MeanError, double? Rmse, int NMape, double? Mape,
+        int NScaled, double? ScaledMae, double? ScaledMeanError, string? Bias,
+        int NRange, double? Coverage, double? IntervalScore, int NRangeScaled, double? ScaledIntervalScore,
+        int NScaledNaive, double? ScaledSkill, int NPaired, double? FirstToFinalChange,
+        bool Ranked, int? Rank, int WeightN, double? Weight, int? RangeWeightN, double? RangeWeight);
+
+    /// <summary>A virtual expert's scores (the consensus, or the no-change forecast); n as in <see cref="ScorecardExpertDto"/>; non-finite figures are null.</summary>
+    public sealed record ScorecardSummaryDto(
+        int N, double? Mae, double? MeanError, double? Rmse, int NMape, double? Mape, int NScaled, double? ScaledMae, double? ScaledMeanError,
+        int NRange, double? Coverage, double? IntervalScore, int NRangeScaled, double? ScaledIntervalScore, int NScaledNaive, double? ScaledSkill)
+    {
+        public static ScorecardSummaryDto From(ErrorSummary s) => new(
+            s.N, F(s.Mae), F(s.MeanError), F(s.Rmse), s.NMape, F(s.Mape), s.NScaled, F(s.ScaledMae), F(s.ScaledMeanError),
+            s.NRange, F(s.Coverage), F(s.IntervalScore), s.NRangeScaled, F(s.ScaledIntervalScore), s.NScaledNaive, F(s.ScaledSkill));
+    }
+
+    public sealed record ScorecardDto(
+        string? Indicator, string? Period, int Panels, IReadOnlyList<ScorecardExpertDto> Experts, ScorecardSummaryDto Consensus, ScorecardSummaryDto Naive,
+        DateOnly WeightsKnownBefore, double PseudoForecasts, string Caution);
+
+    /// <summary>One panel's backtest: <c>hasHistory</c> false means nobody had a record before it closed, so there is no weighted result (null).</summary>
+    public sealed record BacktestPanelDto(
+        int PanelId, string Panel, DateOnly ClosedOn, int HistoryItems, bool HasHistory, int N, double? EqualScaledMae, double? WeightedScaledMae, double? Difference);
+
+    /// <summary>Equal against weighted over the panels with history; n = question-periods scored.</summary>
+    public sealed record BacktestPooledDto(int N, int Panels, double? EqualScaledMae, double? WeightedScaledMae, double? Difference);
+
+    public sealed record BacktestDto(IReadOnlyList<BacktestPanelDto> Panels, BacktestPooledDto Pooled, double PseudoForecasts, string Caution);
+
+    public static IEndpointRouteBuilder MapScorecardApi(this IEndpointRouteBuilder app)
+    {
+        var group = app.MapGroup("/api/scorecard").WithTags("Scorecard").RequireAuthorization(AuthSetup.StaffPolicy);
+        group.MapGet("/", GetScorecard).WithName("GetScorecard")
+            .WithSummary("Per expert (by external key) and for the consensus and the no-change forecast: n, MAE, mean error, RMSE, scaled MAE, coverage and interval score; optional filters indicator and period.");
+        group.MapGet("/backtest", GetBacktest).WithName("GetBacktest")
+            .WithSummary("Per past panel and pooled: scaled MAE of the equal-weight and the track-record consensus, weights known before each panel closed.");
+        app.MapGet("/api/panels/{id:int}/consensus/compare", CompareConsensus).WithTags("Panels").RequireAuthorization(AuthSetup.StaffPolicy)
+            .WithName("CompareConsensus")
+            .WithSummary("Equal-weight and track-record consensus of the last closed round side by side, with the members' weights by panel code.");
+        return app;
+    }
+
+    public static async Task<Ok<ScorecardDto>> GetScorecard(string? indicator, string? period, ScorecardService scorecard)
+    {
+        var view = await scorecard.ScorecardAsync(new ScorecardFilter(Blank(indicator), Blank(period)));
+        var experts = view.Experts.Select(l =>
+        {
+            var f = l.Score.Final;
+            return new ScorecardExpertDto(
+                l.Expert.DisplayKey, f.N, F(f.Mae), F(f.MeanError), F(f.Rmse), f.NMape, F(f.Mape),
+                f.NScaled, F(f.ScaledMae), F(f.ScaledMeanError), l.Score.Bias?.ToString(),
+                f.NRange, F(f.Coverage), F(f.IntervalScore), f.NRangeScaled, F(f.ScaledIntervalScore),
+                f.NScaledNaive, F(f.ScaledSkill), l.Score.FinalPaired.NScaled, F(l.Score.FirstToFinalChange),
+                l.Score.Ranked, l.Score.Rank, l.PointWeight.N, F(l.PointWeight.Weight), l.RangeWeight?.N, F(l.RangeWeight?.Weight));
+        }).ToList();
+        return TypedResults.Ok(new ScorecardDto(view.Filter.Indicator, view.Filter.Period, view.Panels, experts,
+            ScorecardSummaryDto.From(view.Consensus), ScorecardSummaryDto.From(view.Naive), view.WeightsKnownBefore, view.PseudoForecasts, Caution));
+    }
+
+    public static async Task<Ok<BacktestDto>> GetBacktest(ScorecardService scorecard)
+    {
+        var view = await scorecard.BacktestAsync();
+        var panels = view.Panels.Select(l =>
+        {
+            var c = l.Result.Comparison;
+            return new BacktestPanelDto(l.Panel.Id, l.Panel.DisplayKey, l.Result.ClosedOn, l.Result.HistoryItems, l.HasHistory, c.N,
+                F(c.EqualScaledMae), l.HasHistory ? F(c.WeightedScaledMae) : null, l.HasHistory ? F(c.Difference) : null);
+        }).ToList();
+        var p = view.Pooled;
+        return TypedResults.Ok(new BacktestDto(
+            panels, new BacktestPooledDto(p.N, view.Panels.Count(l => l.HasHistory && l.Result.Comparison.N > 0), F(p.EqualScaledMae), F(p.WeightedScaledMae), F(p.Difference)),
+            view.PseudoForecasts, Caution));
+    }
+
+    public static async Task<Results<Ok<ConsensusComparison>, ProblemHttpResult>> CompareConsensus(int id, ScorecardService scorecard)
+    {
+        var comparison = await scorecard.CompareAsync(id);
+        return comparison is null ? ApiResults.NotFound($"Panel {id} does not exist or has no closed round.") : TypedResults.Ok(comparison);
+    }
+
+    private static string? Blank(string? text) => string.IsNullOrWhiteSpace(text) ? null : text.Trim();
+
+    /// <summary>A figure as JSON carries it: null unless finite (JSON has no NaN or infinity).</summary>
+    private static double? F(double? value) => Figures.Finite(value);
+}
