@@ -4,6 +4,7 @@ using PanelRound.Web.Application;
 using PanelRound.Web.Application.Scoring;
 using PanelRound.Web.Demo;
 using PanelRound.Web.Infrastructure;
+using PanelRound.Web.Reports;
 
 namespace PanelRound.Web;
 
@@ -89,6 +90,7 @@ public static class WebSetup
         app.MapExpertApi();
         app.MapAuditApi();
         app.MapScoringApis();
+        app.MapReportsApi();
         return app;
     }
 

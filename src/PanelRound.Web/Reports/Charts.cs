@@ -72,8 +72,8 @@ public abstract record Shape
 
     protected static XColor ToColor(string hex, double opacity = 1)
     {
-        var c = XColor.FromArgb(int.Parse(hex.TrimStart('#'), NumberStyles.HexNumber, CultureInfo.InvariantCulture));
-        return XColor.FromArgb((int)Math.Round(opacity * 255), c.R, c.G, c.B);
+        var rgb = int.Parse(hex.TrimStart('#'), NumberStyles.HexNumber, CultureInfo.InvariantCulture);
+        return XColor.FromArgb((int)Math.Round(opacity * 255), (rgb >> 16) & 0xFF, (rgb >> 8) & 0xFF, rgb & 0xFF);
     }
 }
 
@@ -173,15 +173,19 @@ internal static class ChartLayout
             }
         }
 
-        var bandWidth = Math.Max(3, Math.Min(14, (width - Left - Right) / Math.Max(1, (t1 - t0) / points.Min(p => StepOf(p.Period))) * 0.5));
+        var slots = Math.Max(1, model.Series.Count(x => x.Kind == SeriesKind.Band));
+        var bandWidth = Math.Max(2.5, Math.Min(12, (width - Left - Right) / Math.Max(1, (t1 - t0) / points.Min(p => StepOf(p.Period))) * 0.8 / slots));
+        // Band series side by side within a period, so that rounds and the consensus do not hide each other.
+        var bands = model.Series.Where(x => x.Kind == SeriesKind.Band).ToList();
         foreach (var s in model.Series)
         {
             var ordered = s.Points.OrderBy(p => p.Period).ToList();
             if (s.Kind == SeriesKind.Band)
             {
+                var offset = (bands.IndexOf(s) - ((bands.Count - 1) / 2.0)) * bandWidth * 1.1;
                 foreach (var p in ordered.Where(p => p.Low.HasValue && p.High.HasValue))
                 {
-                    var x = X(TimeOf(p.Period));
+                    var x = X(TimeOf(p.Period)) + offset;
                     var top = Y(p.High!.Value);
                     shapes.Add(new RectShape(x - (bandWidth / 2), top, bandWidth, Math.Max(0.8, Y(p.Low!.Value) - top), s.Colour, 0.35,
                         $"{s.Label} {p.Period}: {Number(p.Low.Value, model.Decimals)} to {Number(p.High.Value, model.Decimals)}"));

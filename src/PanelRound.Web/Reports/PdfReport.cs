@@ -81,7 +81,9 @@ public sealed class PdfReport : IDisposable
     {
         var font = Font(size, bold);
         var lineHeight = size * 1.32;
-        var brush = new XSolidBrush(XColor.FromArgb(int.Parse(colour.TrimStart('#'), System.Globalization.NumberStyles.HexNumber, System.Globalization.CultureInfo.InvariantCulture)));
+        var rgb = int.Parse(colour.TrimStart('#'), System.Globalization.NumberStyles.HexNumber, System.Globalization.CultureInfo.InvariantCulture);
+        // Opaque: a colour from an RGB integer alone would have alpha 0 and draw invisible text.
+        var brush = new XSolidBrush(XColor.FromArgb(255, (rgb >> 16) & 0xFF, (rgb >> 8) & 0xFF, rgb & 0xFF));
         foreach (var line in Wrap(text, font, ContentWidth - indent))
         {
             EnsureSpace(lineHeight);
