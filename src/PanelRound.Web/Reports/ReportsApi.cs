@@ -2,6 +2,7 @@ using Microsoft.AspNetCore.Http.HttpResults;
 using PanelRound.Data;
 using PanelRound.Web.Apis;
 using PanelRound.Web.Application;
+using PanelRound.Web.Application.Scoring;
 using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Reports;
@@ -18,7 +19,25 @@ public static class ReportsApi
             .WithSummary("The published consensus as a workbook: the tidy sheet, one sheet per question laid out by period, and the method.");
         g.MapGet("/{id:int}/report.pdf", Dossier).WithName("GetPanelDossier")
             .WithSummary("The panel's audit-ready dossier (PDF): method, rounds, consensus, rationales, audit trail.");
+        var sc = app.MapGroup("/api/scorecard").WithTags("Exports").RequireAuthorization(AuthSetup.StaffPolicy);
+        sc.MapGet("/experts.csv", ScorecardCsv).WithName("GetScorecardCsv")
+            .WithSummary("One row per expert with every scorecard figure and its n; the same filters as GET /api/scorecard (indicator, period).");
+        sc.MapGet("/report.pdf", ScorecardPdf).WithName("GetScorecardReport")
+            .WithSummary("The scorecard, the consensus and the no-change forecast scored alike, and the backtest, as a PDF; filters as GET /api/scorecard.");
         return app;
+    }
+
+    public static async Task<FileContentHttpResult> ScorecardCsv(string? indicator, string? period, ScorecardService scorecard)
+    {
+        var card = (await ScorecardApi.GetScorecard(indicator, period, scorecard)).Value!;
+        return TypedResults.File(ScorecardReport.ToCsv(card), CsvType, "scorecard-experts.csv");
+    }
+
+    public static async Task<FileContentHttpResult> ScorecardPdf(string? indicator, string? period, ScorecardService scorecard, TimeProvider clock)
+    {
+        var card = (await ScorecardApi.GetScorecard(indicator, period, scorecard)).Value!;
+        var backtest = (await ScorecardApi.GetBacktest(scorecard)).Value!;
+        return TypedResults.File(ScorecardReport.ToPdf(card, backtest, clock.GetUtcNow().UtcDateTime), "application/pdf", "scorecard.pdf");
     }
 
     public const string CsvType = "text/csv; charset=utf-8";
