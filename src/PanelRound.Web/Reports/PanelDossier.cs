@@ -36,20 +36,31 @@ public static class PanelDossier
             .Select(e => new { e.RoundId, e.MembershipId }).Distinct().ToListAsync();
         var members = await db.Memberships.AsNoTracking().Where(m => m.PanelId == panelId).Include(m => m.Expert).ToListAsync();
         var audit = await db.AuditEvents.AsNoTracking().Where(a => a.PanelId == panelId).OrderBy(a => a.Id).ToListAsync();
+        return Render(new DossierData(panel, view, rounds, members.Count,
+            responders.GroupBy(r => r.RoundId).ToDictionary(g => g.Key, g => g.Count()), audit,
+            members.Select(m => m.Expert?.DeclaredInterests).ToList(), now));
+    }
 
-        using var pdf = new PdfReport($"Dossier: {panel.Title}", $"PanelRound dossier · {panel.Title}", "A forecast, not a valuation or investment advice.");
-        Cover(pdf, panel, view, rounds, members.Count, responders.GroupBy(r => r.RoundId).ToDictionary(g => g.Key, g => g.Count()), now);
-        foreach (var q in view.Questions)
+    /// <summary>Everything a dossier shows, loaded; <see cref="Render"/> does no I/O.</summary>
+    public sealed record DossierData(
+        Panel Panel, PanelResultsView View, IReadOnlyList<Round> Rounds, int Members, IReadOnlyDictionary<int, int> RespondedByRoundId,
+        IReadOnlyList<AuditEvent> Audit, IReadOnlyList<string?> DeclaredInterests, DateTime Now);
+
+    public static byte[] Render(DossierData d)
+    {
+        using var pdf = new PdfReport($"Dossier: {d.Panel.Title}", $"PanelRound dossier · {d.Panel.Title}", "A forecast, not a valuation or investment advice.");
+        Cover(pdf, d.Panel, d.View, d.Rounds, d.Members, d.RespondedByRoundId, d.Now);
+        foreach (var q in d.View.Questions)
         {
-            Question(pdf, q, rounds);
+            Question(pdf, q, d.Rounds);
         }
-        Appendix(pdf, panel);
-        AuditTrail(pdf, audit);
-        Interests(pdf, members.Select(m => m.Expert?.DeclaredInterests).ToList());
+        Appendix(pdf, d.Panel);
+        AuditTrail(pdf, d.Audit);
+        Interests(pdf, d.DeclaredInterests);
         return pdf.ToBytes();
     }
 
-    private static void Cover(PdfReport pdf, Panel panel, PanelResultsView view, List<Round> rounds, int members, Dictionary<int, int> responded, DateTime now)
+    private static void Cover(PdfReport pdf, Panel panel, PanelResultsView view, IReadOnlyList<Round> rounds, int members, IReadOnlyDictionary<int, int> responded, DateTime now)
     {
         pdf.Space(40);
         pdf.Paragraph("Expert panel dossier", 11, colour: "#555555");
@@ -74,7 +85,7 @@ public static class PanelDossier
         pdf.Paragraph(ConsensusExport.Caution, 9.5, bold: true);
     }
 
-    private static void Question(PdfReport pdf, QuestionResult q, List<Round> rounds)
+    private static void Question(PdfReport pdf, QuestionResult q, IReadOnlyList<Round> rounds)
     {
         pdf.NewPage();
         pdf.Heading($"{q.Label} ({q.Unit})", 2);
@@ -185,7 +196,7 @@ public static class PanelDossier
         ], [2, 3]);
     }
 
-    private static void AuditTrail(PdfReport pdf, List<AuditEvent> audit)
+    private static void AuditTrail(PdfReport pdf, IReadOnlyList<AuditEvent> audit)
     {
         pdf.Heading("Audit trail", 2);
         var states = audit.Where(a => !a.Action.StartsWith("mail.", StringComparison.Ordinal) && !a.Action.StartsWith("link.", StringComparison.Ordinal)).ToList();
@@ -196,7 +207,7 @@ public static class PanelDossier
         pdf.Paragraph($"Not listed: {links} personal-link events and {mails} mail events (in the audit log).", 8.5, colour: "#555555");
     }
 
-    private static void Interests(PdfReport pdf, List<string?> declared)
+    private static void Interests(PdfReport pdf, IReadOnlyList<string?> declared)
     {
         pdf.Heading("Declared interests", 2);
         var given = declared.Where(d => !string.IsNullOrWhiteSpace(d)).Select(d => d!.Trim()).Order(StringComparer.Ordinal).ToList();
