@@ -42,9 +42,12 @@ public sealed record MembershipDto(int Id, int ExpertId, string PanelCode, strin
 
 public sealed record LinkDto(int MembershipId, string PanelCode, string Token, string Link);
 
-public sealed record ConsensusDto(int QuestionId, string Period, double Value, double Low, double High, int N, string Method, DateTime PublishedAt)
+/// <summary>One published consensus value; <c>band</c> says what low and high are (P10-P90 or Q1-Q3); <c>round</c> is the round it came from.</summary>
+public sealed record ConsensusDto(int QuestionId, string Period, double Value, double Low, double High, int N, string Method, DateTime PublishedAt,
+    string Question, string Indicator, string Unit, string Format, string Band, int Round)
 {
-    public static ConsensusDto From(ConsensusEntry c) => new(c.QuestionId, c.Period, c.Value, c.Low, c.High, c.N, c.Method, c.PublishedAt);
+    public static ConsensusDto From(Reports.ConsensusRow r) =>
+        new(r.QuestionId, r.Period, r.Consensus, r.Low, r.High, r.N, r.Method, r.PublishedAt, r.Question, r.Indicator, r.Unit, r.Format, r.Band, r.Round);
 }
 
 public sealed record TrackerDto(int Round, string State, DateTime ClosesAt, int Members, int Responded, IReadOnlyList<string> RespondedCodes, IReadOnlyList<string> PendingCodes);
