@@ -15,8 +15,11 @@ namespace PanelRound.Web.Reports;
 /// source and the panel's settings; the audit trail; declared interests without names.
 /// Panel codes only, never an expert's name.
 /// </summary>
-public static class PanelDossier
+public static partial class PanelDossier
 {
+    [System.Text.RegularExpressions.GeneratedRegex(@"^(none|no|nil|n/a|-)(\s+(declared|to declare))?\.?$", System.Text.RegularExpressions.RegexOptions.IgnoreCase)]
+    private static partial System.Text.RegularExpressions.Regex NoInterest();
+
     /// <summary>Rationales shown per question (unattributed, in alphabetical order).</summary>
     public const int RationalesPerQuestion = 8;
 
@@ -210,7 +213,9 @@ public static class PanelDossier
     private static void Interests(PdfReport pdf, IReadOnlyList<string?> declared)
     {
         pdf.Heading("Declared interests", 2);
-        var given = declared.Where(d => !string.IsNullOrWhiteSpace(d)).Select(d => d!.Trim()).Order(StringComparer.Ordinal).ToList();
+        // "None declared" and the like are declarations of no interest (common practice in registers of interests).
+        var given = declared.Where(d => !string.IsNullOrWhiteSpace(d) && !NoInterest().IsMatch(d.Trim()))
+            .Select(d => d!.Trim()).Order(StringComparer.Ordinal).ToList();
         pdf.Paragraph($"{given.Count} of {declared.Count} experts declared an interest. Listed without names, in alphabetical order:", 9);
         foreach (var d in given)
         {

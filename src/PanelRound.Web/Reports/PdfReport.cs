@@ -70,7 +70,8 @@ public sealed class PdfReport : IDisposable
     public void Heading(string text, int level = 1)
     {
         var size = level switch { 1 => 16, 2 => 12.5, _ => 10.5 };
-        EnsureSpace(size * 3.2);
+        // A heading keeps at least a few lines of what follows on its page.
+        EnsureSpace((size * 3.2) + 70);
         _y += level == 1 ? 4 : 6;
         Paragraph(text, size, bold: true);
         _y += 2;
