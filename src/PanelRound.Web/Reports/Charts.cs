@@ -149,6 +149,11 @@ internal static class ChartLayout
         var legend = LegendEntries(model, width, out var legendRows);
         var plotBottom = height - AxisHeight - (legendRows * LegendRow) - 4;
         var values = points.SelectMany(p => new[] { p.Value, p.Low ?? p.Value, p.High ?? p.Value }).Where(double.IsFinite).ToList();
+        if (values.Count == 0)
+        {
+            shapes.Add(new TextShape(width / 2, height / 2, "No data to chart.", 9, "middle", "#777777"));
+            return shapes;
+        }
         var (min, max, ticks) = NiceScale(values.Min(), values.Max());
         var t0 = points.Min(p => TimeOf(p.Period)) - 0.5;
         var t1 = points.Max(p => TimeOf(p.Period)) + 0.5;
@@ -259,7 +264,9 @@ internal static class ChartLayout
     /// <summary>Axis limits and ticks at 1, 2 or 5 times a power of ten, about five of them.</summary>
     internal static (double Min, double Max, IReadOnlyList<double> Ticks) NiceScale(double lo, double hi)
     {
-        if (hi <= lo)
+        // A flat or nearly flat set of values (differences at the last bits of a double) gets a
+        // padded range, so the step can never be too small to advance.
+        if (hi - lo <= 1e-9 * Math.Max(1, Math.Max(Math.Abs(lo), Math.Abs(hi))))
         {
             var pad = lo == 0 ? 1 : Math.Abs(lo) * 0.05;
             (lo, hi) = (lo - pad, hi + pad);
@@ -267,14 +274,15 @@ internal static class ChartLayout
         var raw = (hi - lo) / 5;
         var magnitude = Math.Pow(10, Math.Floor(Math.Log10(raw)));
         var step = new[] { 1, 2, 2.5, 5, 10 }.Select(f => f * magnitude).First(s => s >= raw);
-        var min = Math.Floor(lo / step) * step;
-        var max = Math.Ceiling(hi / step) * step;
+        var first = Math.Floor(lo / step);
+        var last = Math.Ceiling(hi / step);
         var ticks = new List<double>();
-        for (var t = min; t <= max + (step / 2); t += step)
+        // An integer count of steps (at most a dozen), never an accumulated floating-point sum.
+        for (var k = first; k <= last && ticks.Count < 12; k++)
         {
-            ticks.Add(Math.Round(t / step) * step);
+            ticks.Add(k * step);
         }
-        return (min, max, ticks);
+        return (first * step, last * step, ticks);
     }
 
     internal static string Number(double v, int decimals) => v.ToString("N" + decimals.ToString(CultureInfo.InvariantCulture), CultureInfo.InvariantCulture);

@@ -23,7 +23,8 @@ public static partial class PanelDossier
     /// <summary>Rationales shown per question (unattributed, in alphabetical order).</summary>
     public const int RationalesPerQuestion = 8;
 
-    private static readonly string[] RoundColours = ["#9ecae1", "#6baed6", "#3182bd", "#08519c", "#08306b"];
+    // Ten distinguishable blues and purples for up to ten rounds (the round cap's maximum); the consensus is orange.
+    private static readonly string[] RoundColours = ["#9ecae1", "#6baed6", "#3182bd", "#08519c", "#08306b", "#bcbddc", "#9e9ac8", "#807dba", "#6a51a3", "#4a1486"];
 
     public static async Task<byte[]?> BuildAsync(PanelRoundDbContext db, PanelResults results, int panelId, DateTime now)
     {
@@ -144,10 +145,12 @@ public static partial class PanelDossier
     /// <summary>The question's chart: the reference history, each round's median with its Q1-Q3 band, and the consensus with its band.</summary>
     public static ChartModel ChartOf(QuestionResult q)
     {
-        var series = new List<ChartSeries>
+        var series = new List<ChartSeries>();
+        if (q.Reference.Count > 0)
         {
-            new("Observed history", SeriesKind.Line, "#555555", q.Reference.Select(r => new ChartPoint(Period.Parse(r.Period), r.Value)).ToList()),
-        };
+            series.Add(new("Observed history", SeriesKind.Line, "#555555", q.Reference.Select(r => new ChartPoint(Period.Parse(r.Period), r.Value)).ToList()));
+        }
+        var of = q.Format == ResponseFormat.Range ? "median of the P50s and their Q1-Q3" : "median and Q1-Q3";
         var roundNumbers = q.Periods.SelectMany(p => p.Rounds).Select(r => r.Round).Distinct().Order().ToList();
         foreach (var n in roundNumbers)
         {
@@ -156,7 +159,7 @@ public static partial class PanelDossier
                 .Select(x => new ChartPoint(Period.Parse(x.Period), x.Round!.Feedback.Headline!.Median, x.Round.Feedback.Headline.Q1, x.Round.Feedback.Headline.Q3)).ToList();
             if (points.Count > 0)
             {
-                series.Add(new ChartSeries($"Round {n}: median and Q1-Q3", SeriesKind.Band, RoundColours[Math.Min(n - 1, RoundColours.Length - 1)], points));
+                series.Add(new ChartSeries($"Round {n}: {of}", SeriesKind.Band, RoundColours[(n - 1) % RoundColours.Length], points));
             }
         }
         var consensus = q.Periods.Where(p => p.Consensus is not null)

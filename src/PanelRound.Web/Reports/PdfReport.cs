@@ -192,12 +192,32 @@ public sealed class PdfReport : IDisposable
         {
             return text;
         }
-        var t = text;
-        while (t.Length > 1 && gfx.MeasureString(t + "…", font).Width > width)
+        return text[..FittingPrefix(gfx, text, font, width - gfx.MeasureString("…", font).Width)] + "…";
+    }
+
+    /// <summary>
+    /// The length of the longest prefix of <paramref name="text"/> that fits, cut only between
+    /// text elements (never inside a surrogate pair or a combining sequence), found by binary search;
+    /// at least one text element.
+    /// </summary>
+    private static int FittingPrefix(XGraphics measure, string text, XFont font, double width)
+    {
+        var starts = System.Globalization.StringInfo.ParseCombiningCharacters(text);
+        int lo = 1, hi = starts.Length - 1, best = 1;
+        while (lo <= hi)
         {
-            t = t[..^1];
+            var mid = (lo + hi) / 2;
+            if (measure.MeasureString(text[..starts[mid]], font).Width <= width)
+            {
+                best = mid;
+                lo = mid + 1;
+            }
+            else
+            {
+                hi = mid - 1;
+            }
         }
-        return t + "…";
+        return starts.Length > best ? starts[best] : text.Length;
     }
 
     /// <summary>Breaks text into lines that fit the width: at spaces, at line breaks, and inside words longer than a line.</summary>
@@ -221,12 +241,12 @@ public sealed class PdfReport : IDisposable
                     lines.Add(current);
                 }
                 current = word;
-                while (measure.MeasureString(current, font).Width > width && current.Length > 1)
+                while (measure.MeasureString(current, font).Width > width)
                 {
-                    var cut = current.Length - 1;
-                    while (cut > 1 && measure.MeasureString(current[..cut], font).Width > width)
+                    var cut = FittingPrefix(measure, current, font, width);
+                    if (cut <= 0 || cut >= current.Length)
                     {
-                        cut--;
+                        break;
                     }
                     lines.Add(current[..cut]);
                     current = current[cut..];

@@ -31,8 +31,9 @@ public sealed record XlsxSheet(string Name, IReadOnlyList<double> ColumnWidths, 
 
 /// <summary>
 /// Writes .xlsx workbooks with the Open XML SDK (DocumentFormat.OpenXml, Microsoft's maintained
-/// implementation of ECMA-376): numeric cells as numbers, texts as inline strings, explicit column
-/// widths (nothing measures fonts), a bold header row.
+/// implementation of ECMA-376): numeric cells as numbers, texts as inline strings (never formulas;
+/// a text that begins like a formula also carries the quote-prefix style), explicit column widths
+/// (nothing measures fonts), a bold header row.
 /// </summary>
 public static class Xlsx
 {
@@ -68,8 +69,11 @@ public static class Xlsx
                         }
                         else if (cell.Text is { } t)
                         {
-                            xrow.Append(new Cell(new InlineString(new Text(SafeCells.Text(t)!) { Space = SpaceProcessingModeValues.Preserve }))
-                            { CellReference = reference, DataType = CellValues.InlineString, StyleIndex = style });
+                            // A text that could start a formula keeps its characters and gets the quote-prefix
+                            // style (styles 2 and 3), which marks it as text even when someone edits the cell.
+                            var guarded = SafeCells.Text(t) != t ? 2u : 0u;
+                            xrow.Append(new Cell(new InlineString(new Text(t) { Space = SpaceProcessingModeValues.Preserve }))
+                            { CellReference = reference, DataType = CellValues.InlineString, StyleIndex = style + guarded });
                         }
                     }
                     data.Append(xrow);
@@ -97,9 +101,9 @@ public static class Xlsx
     /// <summary>A valid, unique sheet name: at most 31 characters, none of : \ / ? * [ ].</summary>
     private static string SheetName(string wanted, HashSet<string> used)
     {
-        var clean = new string(wanted.Select(ch => ch is ':' or '\\' or '/' or '?' or '*' or '[' or ']' ? ' ' : ch).ToArray()).Trim();
+        var clean = new string(wanted.Select(ch => ch is ':' or '\\' or '/' or '?' or '*' or '[' or ']' || char.IsSurrogate(ch) ? ' ' : ch).ToArray()).Trim().Trim('\'');
         clean = clean.Length == 0 ? "Sheet" : clean;
-        var name = clean.Length > 31 ? clean[..31] : clean;
+        var name = clean.Length > 31 ? clean[..31].TrimEnd('\'') : clean;
         for (var k = 2; !used.Add(name); k++)
         {
             var suffix = $" ({k})";
@@ -112,5 +116,10 @@ public static class Xlsx
         new Fonts(new Font(), new Font(new Bold())) { Count = 2 },
         new Fills(new Fill(new PatternFill { PatternType = PatternValues.None }), new Fill(new PatternFill { PatternType = PatternValues.Gray125 })) { Count = 2 },
         new Borders(new Border()) { Count = 1 },
-        new CellFormats(new CellFormat(), new CellFormat { FontId = 1, ApplyFont = true }) { Count = 2 });
+        new CellFormats(
+            new CellFormat(),
+            new CellFormat { FontId = 1, ApplyFont = true },
+            new CellFormat { QuotePrefix = true },
+            new CellFormat { FontId = 1, ApplyFont = true, QuotePrefix = true })
+        { Count = 4 });
 }
