@@ -1,6 +1,9 @@
 using BenchmarkDotNet.Running;
 
-// dotnet run -c Release --project bench/PanelRound.Bench -- --filter '*'
-BenchmarkSwitcher.FromAssembly(typeof(Program).Assembly).Run(args);
+namespace PanelRound.Bench;
 
-public partial class Program;
+/// <summary>dotnet run -c Release --project bench/PanelRound.Bench -- --filter '*'</summary>
+public static class BenchProgram
+{
+    public static void Main(string[] args) => BenchmarkSwitcher.FromAssembly(typeof(BenchProgram).Assembly).Run(args);
+}

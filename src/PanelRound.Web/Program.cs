@@ -14,6 +14,7 @@ using PanelRound.Web.Features.Roster;
 using PanelRound.Web.Features.Rounds;
 using PanelRound.Web.Features.Scorecard;
 using PanelRound.Web.Infrastructure;
+using PanelRound.Web.Reports;
 
 var command = AdminCommands.CommandOf(args);
 var builder = WebApplication.CreateBuilder(AdminCommands.ConfigArgs(args));
@@ -48,6 +49,7 @@ app.MapOutcomesApi();
 app.MapScorecardApi();
 app.MapImportsApi();
 app.MapAuditApi();
+app.MapReportsApi();
 
 // The pages (Pages/<Area>/<Page>.cshtml), their logic in the same features.
 app.MapRazorPages();

@@ -16,9 +16,11 @@ public static class WebSetup
         services.AddSingleton(TimeProvider.System);
         services.AddProblemDetails();
         services.AddBadRequestProblems();
+        services.AddStrictJsonNumbers();
         services.AddOpenApi();
         services.AddRazorPages(o =>
         {
+            o.Conventions.ConfigureFilter(new UnknownHandlerFilter());
             o.Conventions.AuthorizeFolder("/Staff", AuthSetup.StaffPolicy);
             o.Conventions.AuthorizeFolder("/Admin", AuthSetup.AdministratorPolicy);
             o.Conventions.RequireWritePolicies("/Staff", "/Admin");

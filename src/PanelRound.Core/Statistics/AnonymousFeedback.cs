@@ -6,34 +6,43 @@ namespace PanelRound.Core.Statistics;
 /// </summary>
 /// <param name="N">The number of answers.</param>
 /// <param name="Median">The median of all answers (for Range questions, of the P50s).</param>
-/// <param name="Spread">Quartiles, trimmed median, histogram and band; null below <see cref="AnonymousFeedback.MinimumForSpread"/> answers.</param>
+/// <param name="Spread">Quartiles, histogram and band; null below <see cref="AnonymousFeedback.MinimumForSpread"/> answers.</param>
 /// <remarks>
 /// <para>What is left out, and why. No minimum, maximum or extreme of the retained answers: an
 /// extreme is one person's answer, and the same person holding it across periods links an answer
 /// profile. No mean of any kind: with the median and quartiles, a mean of a small group lets the
-/// holder of an extreme solve for the other extreme exactly (at n = 5, type-7 quartiles are the
-/// 2nd and 4th answers, so own answer + Q1 + median + Q3 + mean determine all five). For Range
-/// questions the band is the median of the P10s and of the P90s, not their average, for the same
-/// reason.</para>
+/// holder of an extreme solve for the other extreme exactly. No trimmed median: the outlier rule's
+/// fences follow from the shown quartiles, so an expert can tell which answers it excluded, and the
+/// median of the rest is one more equation (at n = 6 the holder of the top answer could solve four
+/// of the five others from it, the median and the quartiles). For Range questions the band is the
+/// median of the P10s and of the P90s, not their average, for the same reason.</para>
 /// <para>Group sizes. Nothing is shown below the panel's minimum group size (never below 3). From
-/// that size to <see cref="MinimumForSpread"/> − 1 answers only the median is shown: with 3 or 4
-/// answers, median, quartiles and a range determine every answer. Quartiles, the relative IQR,
-/// the trimmed median and the histogram appear from <see cref="MinimumForSpread"/> = 5 answers:
-/// the smallest group in which an expert, knowing their own answer and everything shown, still
-/// cannot determine the lowest or the highest answer of the others (the open-ended outer bins
-/// bound them from one side only) nor the whole set.</para>
+/// that size up to <see cref="MinimumForSpread"/> − 1 answers only the median is shown. The
+/// quartiles, the relative IQR and the histogram appear from <see cref="MinimumForSpread"/> = 8
+/// answers. Every shown quantile is an order statistic or an interpolation between two adjacent
+/// ones (Hyndman &amp; Fan type 7); an expert whose own answer is one of an interpolated pair can
+/// solve for the other, so some central answer is always learnable from a median. Below 8 answers
+/// the quartiles interpolate pairs that overlap the median's (n = 5: Q1, median and Q3 are the 2nd,
+/// 3rd and 4th answers; n = 6: the holder of the 3rd answer solves the 4th from the median, then the
+/// 5th and 2nd from the quartiles); from 8 answers the three quantiles use disjoint pairs, so from
+/// its own answer an expert solves at most one other, never the lowest or the highest (the outer
+/// bins are open-ended). Residual risk, stated plainly: when answers are round numbers, an
+/// interpolated quartile (e.g. 0.25·x2 + 0.75·x3) can have a single whole-number solution and so
+/// reveal its pair of answers, though not whose they are. The integration test
+/// FeedbackAnonymityTests searches exhaustively over whole-number answers through the expert API and
+/// requires that the set is never rebuilt, the extremes never determined, and fewer than half of the
+/// other answers determined beyond the shown numbers.</para>
 /// <para>The histogram (<see cref="AnonymousHistogram"/>) has edges derived only from shown
 /// statistics (the Tukey fences Q1 − 1.5·IQR and Q3 + 1.5·IQR and equal-width bins between them;
 /// J. W. Tukey, Exploratory Data Analysis, 1977), open-ended outer bins, and adjacent bins merged
-/// until no bin holds exactly one answer.</para>
-/// <para>Quantiles follow <see cref="FeedbackSettings.Method"/> (Hyndman &amp; Fan type 7 by
-/// default); the trimmed median follows <see cref="FeedbackSettings.Rule"/>, as in
-/// <see cref="PointFeedback"/>.</para>
+/// until every bin is empty or holds at least three answers (so a bin shared by the expert's own
+/// answer always holds at least two others).</para>
+/// <para>Quantiles follow <see cref="FeedbackSettings.Method"/> (Hyndman &amp; Fan type 7 by default).</para>
 /// </remarks>
 public sealed record AnonymousFeedback(int N, double Median, AnonymousSpread? Spread)
 {
     /// <summary>The smallest group for which spread statistics and the histogram are shown (see remarks).</summary>
-    public const int MinimumForSpread = 5;
+    public const int MinimumForSpread = 8;
 
     /// <summary>The expert-facing feedback of Point answers, or null when fewer than the minimum group size answered.</summary>
     /// <param name="values">One answer per expert, in any order; finite, within ±<see cref="Domain.Numbers.MaxMagnitude"/>.</param>
@@ -79,7 +88,6 @@ public sealed record AnonymousFeedback(int N, double Median, AnonymousSpread? Sp
             analysis.Q1,
             analysis.Q3,
             analysis.Median == 0 ? null : iqr / Math.Abs(analysis.Median),
-            Quantiles.MedianSortedCore(analysis.Retained),
             AnonymousHistogram.Build(analysis.Sorted, analysis.Q1, analysis.Q3),
             p10 is null ? null : Quantiles.Median(p10),
             p90 is null ? null : Quantiles.Median(p90));
@@ -91,22 +99,24 @@ public sealed record AnonymousFeedback(int N, double Median, AnonymousSpread? Sp
 /// <param name="Q1">The first quartile.</param>
 /// <param name="Q3">The third quartile.</param>
 /// <param name="RelativeIqr">(Q3 − Q1) / |median|; null when the median is 0.</param>
-/// <param name="TrimmedMedian">The median of the answers the outlier rule retains.</param>
 /// <param name="Histogram">The anonymous histogram.</param>
 /// <param name="BandP10">For Range questions, the median of the experts' P10s; else null.</param>
 /// <param name="BandP90">For Range questions, the median of the experts' P90s; else null.</param>
-public sealed record AnonymousSpread(double Q1, double Q3, double? RelativeIqr, double TrimmedMedian, AnonymousHistogram Histogram, double? BandP10, double? BandP90);
+public sealed record AnonymousSpread(double Q1, double Q3, double? RelativeIqr, AnonymousHistogram Histogram, double? BandP10, double? BandP90);
 
 /// <summary>
 /// A histogram whose bin edges are functions of the shown quartiles only and whose bins never
-/// hold exactly one answer. Bin i holds the answers x with Edges[i−1] ≤ x &lt; Edges[i], where the
+/// hold fewer than <see cref="MinimumBinCount"/> answers unless empty. Bin i holds the answers x with Edges[i−1] ≤ x &lt; Edges[i], where the
 /// first bin is open below (x &lt; Edges[0]) and the last open above (x ≥ Edges[^1]); so there is
 /// one more count than edges.
 /// </summary>
 /// <param name="Edges">The inner edges, ascending; empty when all answers share one bin.</param>
-/// <param name="Counts">The counts, Edges.Count + 1 of them; each 0 or at least 2.</param>
+/// <param name="Counts">The counts, Edges.Count + 1 of them; each 0 or at least <see cref="MinimumBinCount"/>.</param>
 public sealed record AnonymousHistogram(IReadOnlyList<double> Edges, IReadOnlyList<int> Counts)
 {
+    /// <summary>The fewest answers a non-empty bin holds, so that a bin never narrows down one other answer.</summary>
+    public const int MinimumBinCount = 3;
+
     /// <summary>The most inner bins between the fences before merging.</summary>
     public const int MaxInnerBins = 10;
 
@@ -141,11 +151,13 @@ public sealed record AnonymousHistogram(IReadOnlyList<double> Edges, IReadOnlyLi
             counts[bin]++;
         }
 
-        // Merge a bin holding one answer into its neighbour (the next one, or the previous for the
-        // last bin) by removing the edge between them, until no bin holds exactly one answer.
+        // Merge a bin holding one or two answers into its neighbour (the next one, or the previous
+        // for the last bin) by removing the edge between them, until every bin is empty or holds at
+        // least three: an expert whose own answer shares a bin with just one other would otherwise
+        // learn that one answer's interval.
         for (var i = 0; i < counts.Count;)
         {
-            if (counts[i] != 1 || counts.Count == 1)
+            if (counts[i] is 0 or >= MinimumBinCount || counts.Count == 1)
             {
                 i++;
                 continue;

@@ -107,7 +107,7 @@ public class SubmissionValidatorTests
     [InlineData(56, "The new towers change the market.", false)]
     public void Validate_AnswerOutsideTheShownFences_NeedsARationale(double value, string? rationale, bool refused)
     {
-        var spread = new AnonymousSpread(30, 40, 0.3, 35, new AnonymousHistogram([], [6]), null, null);
+        var spread = new AnonymousSpread(30, 40, 0.3, new AnonymousHistogram([], [6]), null, null);
         var feedback = new Dictionary<(int, string), AnonymousSpread?> { [(Price.Id, "2027")] = spread };
         var check = SubmissionValidator.Validate(Questions, new SubmissionInput(false, [PriceAnswer(value, 30, rationale), RentAnswer(8, 9, 11)]), feedback);
         Assert.Equal(refused, check.Errors.ToDictionary().ContainsKey("answers[0].rationale"));

@@ -87,6 +87,34 @@ public abstract class BadRequestTests(IDatabaseFixture fixture) : ProviderTests(
         Assert.Equal(0, await app.WithDbAsync(db => db.Estimates.CountAsync()));
     }
 
+    [SkippableFact]
+    public async Task TinyOrHugeJsonNumbers_Answer400NamingTheField_NeverStoredAsAnotherNumber()
+    {
+        var app = await StartAsync();
+        var p = await SmallPanel.CreateAsync(app, 3);
+        var expert = app.Client().WithExpertToken(p.Members[0].Token);
+        foreach (var bad in new[] { "1e-400", "1e309", "-1e13" })
+        {
+            var body = $$"""{"draft":true,"answers":[{"questionId":{{p.PointQuestion}},"periods":[{"period":"2027","value":{{bad}}}]}]}""";
+            await AssertNamesFieldAsync(await Send(expert, $"/api/expert/panels/{p.PanelId}/estimates", body), "answers[0].periods[0].value");
+        }
+        Assert.Equal(0, await app.WithDbAsync(db => db.Estimates.CountAsync()));
+    }
+
+    [SkippableFact]
+    public async Task UnknownPagePostHandler_Answers404_Not500()
+    {
+        var app = await StartAsync();
+        var p = await SmallPanel.CreateAsync(app, 3);
+        // A GET with an unknown handler name falls back to the page's GET handler; a POST finds none.
+        var expert = await StaffPages.ExpertClientAsync(app, p.Members[0].Token);
+        Assert.Equal(HttpStatusCode.OK, (await expert.GetAsync("/expert?handler=nonsense")).StatusCode);
+        var staff = await StaffPages.SignedInClientAsync(app, PanelRound.Data.Entities.Roles.Facilitator);
+        var token = await StaffCookieClient.TokenFromAsync(staff, $"/Staff/Panels/Details/{p.PanelId}");
+        var response = await staff.PostFormAsync($"/Staff/Panels/Details/{p.PanelId}?handler=nonsense", token, []);
+        Assert.Equal(HttpStatusCode.NotFound, response.StatusCode);
+    }
+
     private static async Task<HttpResponseMessage> Send(HttpClient client, string url, string json) =>
         await client.PostAsync(url, new StringContent(json, Encoding.UTF8, "application/json"));
 

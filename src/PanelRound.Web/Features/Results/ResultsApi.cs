@@ -1,6 +1,5 @@
 using System.Security.Claims;
 using Microsoft.AspNetCore.Http.HttpResults;
-using Microsoft.EntityFrameworkCore;
 using PanelRound.Data;
 using PanelRound.Web.Infrastructure;
 
@@ -26,17 +25,19 @@ public static class ResultsApi
         return view is null ? ApiResults.NotFound($"Panel {id} does not exist.") : TypedResults.Ok(view);
     }
 
-    public static async Task<Results<Ok<List<ConsensusDto>>, ProblemHttpResult>> GetConsensus(int id, PanelRoundDbContext db)
-    {
-        if (!await db.Panels.AnyAsync(p => p.Id == id))
-        {
-            return ApiResults.NotFound($"Panel {id} does not exist.");
-        }
-        return TypedResults.Ok((await db.Consensus.AsNoTracking().Where(c => c.PanelId == id).OrderBy(c => c.QuestionId).ThenBy(c => c.Period).ToListAsync())
-            .Select(ConsensusDto.From).ToList());
-    }
+    public static async Task<Results<Ok<List<ConsensusDto>>, ProblemHttpResult>> GetConsensus(int id, PanelRoundDbContext db) =>
+        await ConsensusOfAsync(db, id) is { } list ? TypedResults.Ok(list) : ApiResults.NotFound($"Panel {id} does not exist.");
 
     public static async Task<Results<Ok<List<ConsensusDto>>, ValidationProblem, ProblemHttpResult>> Conclude(
-        int id, PanelConclusion conclusion, ClaimsPrincipal user) =>
-        (await conclusion.ConcludeAsync(id, Audit.ActorOf(user))).ToOk(list => list.Select(ConsensusDto.From).ToList());
+        int id, PanelConclusion conclusion, PanelRoundDbContext db, ClaimsPrincipal user)
+    {
+        var outcome = await conclusion.ConcludeAsync(id, Audit.ActorOf(user));
+        return outcome.IsOk ? TypedResults.Ok(await ConsensusOfAsync(db, id) ?? []) : outcome.ToOk(_ => new List<ConsensusDto>());
+    }
+
+    /// <summary>The published consensus in question-id and period order, with its question, indicator, unit, format, band and round; null for an unknown panel.</summary>
+    private static async Task<List<ConsensusDto>?> ConsensusOfAsync(PanelRoundDbContext db, int id) =>
+        await Reports.ConsensusExport.LoadAsync(db, id) is { } loaded
+            ? loaded.Rows.OrderBy(r => r.QuestionId).ThenBy(r => r.Period, StringComparer.Ordinal).Select(ConsensusDto.From).ToList()
+            : null;
 }

@@ -1,0 +1,289 @@
+using System.Globalization;
+using System.Net;
+using System.Text;
+using PanelRound.Core.Domain;
+using PdfSharp.Drawing;
+
+namespace PanelRound.Web.Reports;
+
+/// <summary>How a series is drawn.</summary>
+public enum SeriesKind
+{
+    /// <summary>A line through the values, broken where a period is missing.</summary>
+    Line,
+
+    /// <summary>A shaded band from Low to High per period, with the value as a dot.</summary>
+    Band,
+}
+
+/// <summary>One value of a series at a period; Low and High for bands.</summary>
+public readonly record struct ChartPoint(Period Period, double Value, double? Low = null, double? High = null);
+
+/// <summary>A named series: every series appears in the legend with its colour and mark.</summary>
+public sealed record ChartSeries(string Label, SeriesKind Kind, string Colour, IReadOnlyList<ChartPoint> Points, bool Dashed = false);
+
+/// <summary>
+/// One chart model for pages (SVG) and reports (PDF vector drawing): a real time axis (periods at
+/// their position in time, so a missing year is a gap in a line, not a step to the next value),
+/// "nice" value ticks, and a legend entry for every series.
+/// </summary>
+public sealed record ChartModel(string Title, string Unit, int Decimals, IReadOnlyList<ChartSeries> Series)
+{
+    /// <summary>The drawing in abstract shapes, laid out for a width and height in points (1/72 in, or CSS px for SVG).</summary>
+    public IReadOnlyList<Shape> Layout(double width, double height) => ChartLayout.Build(this, width, height);
+
+    /// <summary>An accessible SVG element (role img, a title, and a text alternative).</summary>
+    public string ToSvg(double width = 640, double height = 260)
+    {
+        var sb = new StringBuilder();
+        sb.Append(Inv($"<svg xmlns=\"http://www.w3.org/2000/svg\" viewBox=\"0 0 {width:0} {height:0}\" width=\"100%\" role=\"img\" aria-label=\"{Esc(Title)}\" font-family=\"DejaVu Sans, Arial, sans-serif\">"));
+        sb.Append("<title>").Append(Esc(Title)).Append("</title>");
+        foreach (var s in Layout(width, height))
+        {
+            sb.Append(s.ToSvg());
+        }
+        sb.Append("</svg>");
+        return sb.ToString();
+    }
+
+    /// <summary>Draws the chart as vectors (text stays text) into a rectangle of a PDF page.</summary>
+    public void Draw(XGraphics gfx, XRect area)
+    {
+        var state = gfx.Save();
+        gfx.TranslateTransform(area.X, area.Y);
+        foreach (var s in Layout(area.Width, area.Height))
+        {
+            s.Draw(gfx);
+        }
+        gfx.Restore(state);
+    }
+
+    internal static string Inv(FormattableString f) => f.ToString(CultureInfo.InvariantCulture);
+
+    internal static string Esc(string s) => WebUtility.HtmlEncode(s);
+}
+
+/// <summary>A primitive of a laid-out chart, drawn the same way to SVG and to PDF.</summary>
+public abstract record Shape
+{
+    public abstract string ToSvg();
+
+    public abstract void Draw(XGraphics gfx);
+
+    protected static XColor ToColor(string hex, double opacity = 1)
+    {
+        var rgb = int.Parse(hex.TrimStart('#'), NumberStyles.HexNumber, CultureInfo.InvariantCulture);
+        return XColor.FromArgb((int)Math.Round(opacity * 255), (rgb >> 16) & 0xFF, (rgb >> 8) & 0xFF, rgb & 0xFF);
+    }
+}
+
+public sealed record PolylineShape(IReadOnlyList<(double X, double Y)> Points, string Colour, double Width, bool Dashed) : Shape
+{
+    public override string ToSvg() => ChartModel.Inv($"<polyline fill=\"none\" stroke=\"{Colour}\" stroke-width=\"{Width:0.#}\"{(Dashed ? " stroke-dasharray=\"5,4\"" : "")} points=\"{string.Join(' ', Points.Select(p => ChartModel.Inv($"{p.X:0.#},{p.Y:0.#}")))}\"/>");
+
+    public override void Draw(XGraphics gfx)
+    {
+        var pen = new XPen(ToColor(Colour), Width) { DashStyle = Dashed ? XDashStyle.Dash : XDashStyle.Solid };
+        gfx.DrawLines(pen, Points.Select(p => new XPoint(p.X, p.Y)).ToArray());
+    }
+}
+
+public sealed record RectShape(double X, double Y, double Width, double Height, string Fill, double Opacity, string? Tooltip = null) : Shape
+{
+    public override string ToSvg() => ChartModel.Inv($"<rect x=\"{X:0.#}\" y=\"{Y:0.#}\" width=\"{Width:0.#}\" height=\"{Height:0.#}\" fill=\"{Fill}\" fill-opacity=\"{Opacity:0.##}\">{(Tooltip is null ? "" : "<title>" + ChartModel.Esc(Tooltip) + "</title>")}</rect>");
+
+    public override void Draw(XGraphics gfx) => gfx.DrawRectangle(new XSolidBrush(ToColor(Fill, Opacity)), X, Y, Width, Height);
+}
+
+public sealed record DotShape(double X, double Y, double Radius, string Fill, string? Tooltip = null) : Shape
+{
+    public override string ToSvg() => ChartModel.Inv($"<circle cx=\"{X:0.#}\" cy=\"{Y:0.#}\" r=\"{Radius:0.#}\" fill=\"{Fill}\">{(Tooltip is null ? "" : "<title>" + ChartModel.Esc(Tooltip) + "</title>")}</circle>");
+
+    public override void Draw(XGraphics gfx) => gfx.DrawEllipse(new XSolidBrush(ToColor(Fill)), X - Radius, Y - Radius, 2 * Radius, 2 * Radius);
+}
+
+public sealed record LineShape(double X1, double Y1, double X2, double Y2, string Colour, double Width) : Shape
+{
+    public override string ToSvg() => ChartModel.Inv($"<line x1=\"{X1:0.#}\" y1=\"{Y1:0.#}\" x2=\"{X2:0.#}\" y2=\"{Y2:0.#}\" stroke=\"{Colour}\" stroke-width=\"{Width:0.#}\"/>");
+
+    public override void Draw(XGraphics gfx) => gfx.DrawLine(new XPen(ToColor(Colour), Width), X1, Y1, X2, Y2);
+}
+
+/// <summary>Text at a point; Anchor is start, middle or end (as in SVG); Y is the baseline.</summary>
+public sealed record TextShape(double X, double Y, string Text, double Size, string Anchor, string Colour = "#333333", bool Bold = false) : Shape
+{
+    public override string ToSvg() => ChartModel.Inv($"<text x=\"{X:0.#}\" y=\"{Y:0.#}\" font-size=\"{Size:0.#}\" text-anchor=\"{Anchor}\" fill=\"{Colour}\"{(Bold ? " font-weight=\"bold\"" : "")}>{ChartModel.Esc(Text)}</text>");
+
+    public override void Draw(XGraphics gfx)
+    {
+        var font = new XFont(ReportFonts.Family, Size, Bold ? XFontStyleEx.Bold : XFontStyleEx.Regular);
+        var w = gfx.MeasureString(Text, font).Width;
+        var x = Anchor switch { "middle" => X - (w / 2), "end" => X - w, _ => X };
+        gfx.DrawString(Text, font, new XSolidBrush(ToColor(Colour)), x, Y, XStringFormats.BaseLineLeft);
+    }
+}
+
+/// <summary>Lays a <see cref="ChartModel"/> out into shapes.</summary>
+internal static class ChartLayout
+{
+    private const double Left = 58, Right = 12, Top = 26, AxisHeight = 22, LegendRow = 16;
+
+    /// <summary>A period's position in time: the middle of its year or quarter, in years.</summary>
+    public static double TimeOf(Period p) => p.IsYear ? p.Year + 0.5 : p.Year + ((p.Quarter - 0.5) / 4.0);
+
+    /// <summary>The spacing of consecutive periods of the same kind, in years.</summary>
+    private static double StepOf(Period p) => p.IsYear ? 1 : 0.25;
+
+    public static IReadOnlyList<Shape> Build(ChartModel model, double width, double height)
+    {
+        var shapes = new List<Shape>();
+        var points = model.Series.SelectMany(s => s.Points).ToList();
+        shapes.Add(new TextShape(Left, 14, model.Unit.Length > 0 ? $"{model.Title} ({model.Unit})" : model.Title, 10, "start", "#222222", Bold: true));
+        if (points.Count == 0)
+        {
+            shapes.Add(new TextShape(width / 2, height / 2, "No data to chart.", 9, "middle", "#777777"));
+            return shapes;
+        }
+
+        // The legend: as many entries per row as fit, below the axis.
+        var legend = LegendEntries(model, width, out var legendRows);
+        var plotBottom = height - AxisHeight - (legendRows * LegendRow) - 4;
+        var values = points.SelectMany(p => new[] { p.Value, p.Low ?? p.Value, p.High ?? p.Value }).Where(double.IsFinite).ToList();
+        if (values.Count == 0)
+        {
+            shapes.Add(new TextShape(width / 2, height / 2, "No data to chart.", 9, "middle", "#777777"));
+            return shapes;
+        }
+        var (min, max, ticks) = NiceScale(values.Min(), values.Max());
+        var t0 = points.Min(p => TimeOf(p.Period)) - 0.5;
+        var t1 = points.Max(p => TimeOf(p.Period)) + 0.5;
+        double X(double t) => Left + ((t - t0) / (t1 - t0) * (width - Left - Right));
+        double Y(double v) => Top + ((max - v) / (max - min) * (plotBottom - Top));
+
+        foreach (var tick in ticks)
+        {
+            shapes.Add(new LineShape(Left, Y(tick), width - Right, Y(tick), "#e3e3e3", 0.6));
+            shapes.Add(new TextShape(Left - 5, Y(tick) + 3, Number(tick, model.Decimals), 8, "end", "#555555"));
+        }
+        shapes.Add(new LineShape(Left, plotBottom, width - Right, plotBottom, "#999999", 0.8));
+        var firstYear = (int)Math.Floor(t0 + 0.5);
+        var lastYear = (int)Math.Floor(t1 - 0.5);
+        var every = Math.Max(1, (int)Math.Ceiling((lastYear - firstYear + 1) / ((width - Left - Right) / 38.0)));
+        for (var y = firstYear; y <= lastYear; y++)
+        {
+            shapes.Add(new LineShape(X(y), plotBottom, X(y), plotBottom + 3, "#999999", 0.6));
+            if ((y - firstYear) % every == 0)
+            {
+                shapes.Add(new TextShape(X(y + 0.5), plotBottom + 13, y.ToString(CultureInfo.InvariantCulture), 8, "middle", "#555555"));
+            }
+        }
+
+        var slots = Math.Max(1, model.Series.Count(x => x.Kind == SeriesKind.Band));
+        var bandWidth = Math.Max(2.5, Math.Min(12, (width - Left - Right) / Math.Max(1, (t1 - t0) / points.Min(p => StepOf(p.Period))) * 0.8 / slots));
+        // Band series side by side within a period, so that rounds and the consensus do not hide each other.
+        var bands = model.Series.Where(x => x.Kind == SeriesKind.Band).ToList();
+        foreach (var s in model.Series)
+        {
+            var ordered = s.Points.OrderBy(p => p.Period).ToList();
+            if (s.Kind == SeriesKind.Band)
+            {
+                var offset = (bands.IndexOf(s) - ((bands.Count - 1) / 2.0)) * bandWidth * 1.1;
+                foreach (var p in ordered.Where(p => p.Low.HasValue && p.High.HasValue))
+                {
+                    var x = X(TimeOf(p.Period)) + offset;
+                    var top = Y(p.High!.Value);
+                    shapes.Add(new RectShape(x - (bandWidth / 2), top, bandWidth, Math.Max(0.8, Y(p.Low!.Value) - top), s.Colour, 0.35,
+                        $"{s.Label} {p.Period}: {Number(p.Low.Value, model.Decimals)} to {Number(p.High.Value, model.Decimals)}"));
+                    shapes.Add(new DotShape(x, Y(p.Value), 2.6, s.Colour, $"{s.Label} {p.Period}: {Number(p.Value, model.Decimals)}"));
+                }
+                continue;
+            }
+            // A line breaks where a period is missing: a gap, not a step.
+            var run = new List<(double, double)>();
+            for (var i = 0; i < ordered.Count; i++)
+            {
+                var p = ordered[i];
+                if (i > 0 && TimeOf(p.Period) - TimeOf(ordered[i - 1].Period) > StepOf(p.Period) + 1e-9)
+                {
+                    Flush(shapes, run, s);
+                }
+                run.Add((X(TimeOf(p.Period)), Y(p.Value)));
+                shapes.Add(new DotShape(X(TimeOf(p.Period)), Y(p.Value), 1.8, s.Colour, $"{s.Label} {p.Period}: {Number(p.Value, model.Decimals)}"));
+            }
+            Flush(shapes, run, s);
+        }
+
+        var ly = plotBottom + AxisHeight + 8;
+        foreach (var (s, x, row) in legend)
+        {
+            var y = ly + (row * LegendRow);
+            if (s.Kind == SeriesKind.Band)
+            {
+                shapes.Add(new RectShape(x, y - 8, 10, 10, s.Colour, 0.35));
+                shapes.Add(new DotShape(x + 5, y - 3, 2.2, s.Colour));
+            }
+            else
+            {
+                shapes.Add(new PolylineShape([(x, y - 3), (x + 16, y - 3)], s.Colour, 2, s.Dashed));
+            }
+            shapes.Add(new TextShape(x + 20, y, s.Label, 8, "start", "#333333"));
+        }
+        return shapes;
+    }
+
+    private static void Flush(List<Shape> shapes, List<(double X, double Y)> run, ChartSeries s)
+    {
+        if (run.Count > 1)
+        {
+            shapes.Add(new PolylineShape(run.ToList(), s.Colour, 1.8, s.Dashed));
+        }
+        run.Clear();
+    }
+
+    private static List<(ChartSeries Series, double X, int Row)> LegendEntries(ChartModel model, double width, out int rows)
+    {
+        var list = new List<(ChartSeries, double, int)>();
+        double x = Left;
+        var row = 0;
+        foreach (var s in model.Series)
+        {
+            // An estimate of the text width (DejaVu Sans at 8 pt averages about 4.6 pt a character).
+            var w = 20 + (s.Label.Length * 4.6) + 14;
+            if (x + w > width - Right && x > Left)
+            {
+                row++;
+                x = Left;
+            }
+            list.Add((s, x, row));
+            x += w;
+        }
+        rows = model.Series.Count == 0 ? 0 : row + 1;
+        return list;
+    }
+
+    /// <summary>Axis limits and ticks at 1, 2 or 5 times a power of ten, about five of them.</summary>
+    internal static (double Min, double Max, IReadOnlyList<double> Ticks) NiceScale(double lo, double hi)
+    {
+        // A flat or nearly flat set of values (differences at the last bits of a double) gets a
+        // padded range, so the step can never be too small to advance.
+        if (hi - lo <= 1e-9 * Math.Max(1, Math.Max(Math.Abs(lo), Math.Abs(hi))))
+        {
+            var pad = lo == 0 ? 1 : Math.Abs(lo) * 0.05;
+            (lo, hi) = (lo - pad, hi + pad);
+        }
+        var raw = (hi - lo) / 5;
+        var magnitude = Math.Pow(10, Math.Floor(Math.Log10(raw)));
+        var step = new[] { 1, 2, 2.5, 5, 10 }.Select(f => f * magnitude).First(s => s >= raw);
+        var first = Math.Floor(lo / step);
+        var last = Math.Ceiling(hi / step);
+        var ticks = new List<double>();
+        // An integer count of steps (at most a dozen), never an accumulated floating-point sum.
+        for (var k = first; k <= last && ticks.Count < 12; k++)
+        {
+            ticks.Add(k * step);
+        }
+        return (first * step, last * step, ticks);
+    }
+
+    internal static string Number(double v, int decimals) => v.ToString("N" + decimals.ToString(CultureInfo.InvariantCulture), CultureInfo.InvariantCulture);
+}
