@@ -6,8 +6,9 @@ namespace PanelRound.Web.Infrastructure;
 
 /// <summary>
 /// Reads every JSON number of the API by the one rule for machine-written numbers
-/// (<see cref="Numbers.TryParseInvariant"/>): a value that would underflow to 0 (1e-400), overflow or
-/// exceed ±1e12 is a 400 naming the field, never silently another number. Strings holding numbers
+/// (<see cref="Numbers.TryParseInvariant"/>): a value that would underflow to 0 (1e-400) or overflow
+/// (1e309) is a 400 naming the field, never silently another number; a value beyond ±1e12 is left
+/// to the use case's validation, which names the field in the input's own terms. Strings holding numbers
 /// are read by the same rule (so "1,5" is refused, not read as 15).
 /// </summary>
 public sealed class StrictDoubleConverter : JsonConverter<double>
@@ -20,7 +21,17 @@ public sealed class StrictDoubleConverter : JsonConverter<double>
         }
         var text = reader.TokenType == JsonTokenType.String ? reader.GetString() : System.Text.Encoding.UTF8.GetString(reader.HasValueSequence ? System.Buffers.BuffersExtensions.ToArray(reader.ValueSequence) : reader.ValueSpan);
         var reading = Numbers.TryParseInvariant(text);
-        return reading.IsValid ? reading.Value : throw new JsonException(reading.Error);
+        if (reading.IsValid)
+        {
+            return reading.Value;
+        }
+        // A representable value beyond ±1e12 passes through: the use case's validation refuses it
+        // with the field's own name. What cannot be stored as written (1e-400, 1e309) stops here.
+        if (double.TryParse(text, System.Globalization.NumberStyles.Float, System.Globalization.CultureInfo.InvariantCulture, out var value) && double.IsNormal(value))
+        {
+            return value;
+        }
+        throw new JsonException(reading.Error);
     }
 
     public override void Write(Utf8JsonWriter writer, double value, JsonSerializerOptions options) => writer.WriteNumberValue(value);
