@@ -66,12 +66,12 @@ public static class LargePanel
                 }
                 var h = list[^1].Feedback.Headline!;
                 var consensus = new ConsensusEntry { PanelId = 1, QuestionId = q, Period = period, Value = h.TrimmedMedian, Low = h.Q1, High = h.Q3, N = experts, Method = "TrimmedMedian", PublishedAt = panel.ConcludedAt!.Value };
-                periodResults.Add(new PeriodResult(period, list, StopAdvice.Suggest(list[^1].Convergence, list[^1].Stability, rounds, panel.Settings.RoundCap), consensus));
+                periodResults.Add(new PeriodResult(period, list, StopAdvice.Suggest(list[^1].Convergence, list[^1].Stability, rounds, panel.Settings.RoundCap), ConsensusEntryDto.From(consensus)));
             }
             var rationales = Enumerable.Range(0, experts).Select(e => $"Invented rationale {e} for question {q}: a sentence long enough to wrap onto a second line of the dossier's text.").ToList();
             results.Add(new QuestionResult(q, question.Label, question.Format, "EUR/m²", 0, reference, periodResults, Core.Statistics.StopReason.Stable, "Stable.", rationales));
         }
-        var view2 = new PanelResultsView(1, panel.Title, panel.State, panel.Settings, results);
+        var view2 = new PanelResultsView(1, panel.Title, panel.State, PanelRound.Web.Features.Panels.PanelSettingsDto.From(panel.Settings), results);
         var audit = roundList.SelectMany(r => new[]
         {
             new AuditEvent { Id = (r.Number * 2) - 1, At = r.OpensAt, Actor = "facilitator@invented.example", Action = "round.opened", EntityType = "Round", EntityId = r.Id.ToString(System.Globalization.CultureInfo.InvariantCulture), PanelId = 1 },

@@ -34,7 +34,7 @@ public class PanelRoundDbContext(DbContextOptions<PanelRoundDbContext> options)
 
     public DbSet<Round> Rounds => Set<Round>();
 
-    public DbSet<RoundFeedback> RoundFeedback => Set<RoundFeedback>();
+    public DbSet<FrozenFeedback> FrozenFeedback => Set<FrozenFeedback>();
 
     public DbSet<Estimate> Estimates => Set<Estimate>();
 

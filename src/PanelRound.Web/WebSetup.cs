@@ -1,3 +1,4 @@
+using System.Text.Json.Serialization;
 using PanelRound.Data;
 using PanelRound.Web.Demo;
 using PanelRound.Web.Infrastructure;
@@ -14,6 +15,8 @@ public static class WebSetup
         System.Globalization.CultureInfo.DefaultThreadCurrentUICulture = System.Globalization.CultureInfo.InvariantCulture;
         var services = builder.Services;
         services.AddSingleton(TimeProvider.System);
+        // Enums are their names in every JSON answer (the API reads names too, e.g. "TukeyFences").
+        services.ConfigureHttpJsonOptions(o => o.SerializerOptions.Converters.Add(new JsonStringEnumConverter()));
         services.AddProblemDetails();
         services.AddBadRequestProblems();
         services.AddStrictJsonNumbers();

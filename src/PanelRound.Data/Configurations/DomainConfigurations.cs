@@ -98,10 +98,12 @@ internal sealed class RoundConfiguration : IEntityTypeConfiguration<Round>
     }
 }
 
-internal sealed class RoundFeedbackConfiguration : IEntityTypeConfiguration<RoundFeedback>
+internal sealed class FrozenFeedbackConfiguration : IEntityTypeConfiguration<FrozenFeedback>
 {
-    public void Configure(EntityTypeBuilder<RoundFeedback> b)
+    public void Configure(EntityTypeBuilder<FrozenFeedback> b)
     {
+        // The table keeps the name it was created with.
+        b.ToTable("RoundFeedback");
         b.Property(x => x.Period).HasMaxLength(FieldLengths.Period).IsRequired();
         b.HasIndex(x => new { x.RoundId, x.QuestionId, x.Period }).IsUnique();
         b.HasOne<Question>().WithMany().HasForeignKey(x => x.QuestionId).OnDelete(DeleteBehavior.Restrict);

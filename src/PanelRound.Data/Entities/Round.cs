@@ -28,11 +28,14 @@ public class Round
     /// </summary>
     public Guid Version { get; set; }
 
-    public List<RoundFeedback> Feedback { get; set; } = [];
+    public List<FrozenFeedback> Feedback { get; set; } = [];
 }
 
-/// <summary>The frozen group statistics of one question-period in a closed round.</summary>
-public class RoundFeedback
+/// <summary>
+/// The frozen group statistics of one question-period in a closed round (the round feedback of the
+/// design's vocabulary, as stored; the statistics themselves are computed by the core's <c>RoundFeedback</c>).
+/// </summary>
+public class FrozenFeedback
 {
     public long Id { get; set; }
 

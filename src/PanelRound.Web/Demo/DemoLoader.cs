@@ -122,7 +122,7 @@ public sealed class DemoLoader(PanelRoundDbContext db, UserManager<StaffUser> us
             }
             Audit.Record(db, "demo", "panel.created", "Panel", panel.Id, panel.Id, new { panel.Title }, panel.CreatedAt);
             await db.SaveChangesAsync();
-            await DemoHooks.CompleteAsync(services, panel, p);
+            await DemoRoundReplay.ReplayAsync(services, panel, p);
         }
         Audit.Record(db, "demo", "demo.loaded", "Database", "demo", details: new { panels = scenario.Panels.Count, estimates = scenario.Estimates.Count }, at: now);
         await db.SaveChangesAsync();

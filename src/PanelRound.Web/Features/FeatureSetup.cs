@@ -45,7 +45,7 @@ public static class FeatureSetup
         services.AddOptions<ScoringOptions>().BindConfiguration(ScoringOptions.Section)
             .Validate(o => o.IsValid, "Scoring:PseudoForecasts must be a finite number, 0 or more; Scoring:ImportPublicationLagDays 0 to 3650.")
             .ValidateOnStart();
-        services.AddScoped<ScoringService>();
+        services.AddScoped<ScoringDataLoader>();
         services.AddScoped<TrackRecordWeightsService>();
         services.AddScoped<IMemberWeights>(sp => sp.GetRequiredService<TrackRecordWeightsService>());
         services.AddScoped<ScorecardService>();

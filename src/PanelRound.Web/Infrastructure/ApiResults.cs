@@ -2,25 +2,25 @@ using Microsoft.AspNetCore.Http.HttpResults;
 
 namespace PanelRound.Web.Infrastructure;
 
-/// <summary>Maps application outcomes to typed results: ProblemDetails with field errors, 404 and 409.</summary>
+/// <summary>Maps operation results to typed results: ProblemDetails with field errors, 404 and 409.</summary>
 public static class ApiResults
 {
-    public static Results<Ok<TOut>, ValidationProblem, ProblemHttpResult> ToOk<T, TOut>(this Outcome<T> o, Func<T, TOut> map) =>
+    public static Results<Ok<TOut>, ValidationProblem, ProblemHttpResult> ToOk<T, TOut>(this Result<T> o, Func<T, TOut> map) =>
         o.Kind switch
         {
-            OutcomeKind.Ok => TypedResults.Ok(map(o.Value!)),
-            OutcomeKind.Invalid => TypedResults.ValidationProblem(o.Errors, title: "The input has errors."),
-            OutcomeKind.NotFound => NotFound(o.Message ?? "Not found."),
+            ResultKind.Ok => TypedResults.Ok(map(o.Value!)),
+            ResultKind.Invalid => TypedResults.ValidationProblem(o.Errors, title: "The input has errors."),
+            ResultKind.NotFound => NotFound(o.Message ?? "Not found."),
             _ => TypedResults.Problem(o.Message, statusCode: StatusCodes.Status409Conflict, title: "Conflict"),
         };
 
     public static Results<Created<TOut>, ValidationProblem, ProblemHttpResult> ToCreated<T, TOut>(
-        this Outcome<T> o, Func<T, TOut> map, Func<T, string> location) =>
+        this Result<T> o, Func<T, TOut> map, Func<T, string> location) =>
         o.Kind switch
         {
-            OutcomeKind.Ok => TypedResults.Created(location(o.Value!), map(o.Value!)),
-            OutcomeKind.Invalid => TypedResults.ValidationProblem(o.Errors, title: "The input has errors."),
-            OutcomeKind.NotFound => NotFound(o.Message ?? "Not found."),
+            ResultKind.Ok => TypedResults.Created(location(o.Value!), map(o.Value!)),
+            ResultKind.Invalid => TypedResults.ValidationProblem(o.Errors, title: "The input has errors."),
+            ResultKind.NotFound => NotFound(o.Message ?? "Not found."),
             _ => TypedResults.Problem(o.Message, statusCode: StatusCodes.Status409Conflict, title: "Conflict"),
         };
 

@@ -1,5 +1,6 @@
 using System.Security.Claims;
 using System.Text.Json;
+using System.Text.Json.Serialization;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
 
@@ -11,6 +12,9 @@ namespace PanelRound.Web.Infrastructure;
 /// </summary>
 public static class Audit
 {
+    /// <summary>Details as JSON, enums by name as in the API.</summary>
+    private static readonly JsonSerializerOptions DetailsJson = new() { Converters = { new JsonStringEnumConverter() } };
+
     public static void Record(PanelRoundDbContext db, string actor, string action, string entityType, object entityId,
         int? panelId = null, object? details = null, DateTime? at = null)
     {
@@ -22,7 +26,7 @@ public static class Audit
             EntityType = entityType,
             EntityId = Convert.ToString(entityId, System.Globalization.CultureInfo.InvariantCulture) ?? "",
             PanelId = panelId,
-            Details = details is null ? null : JsonSerializer.Serialize(details),
+            Details = details is null ? null : JsonSerializer.Serialize(details, DetailsJson),
         });
     }
 

@@ -4,13 +4,13 @@ using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Pages;
 
-/// <summary>Puts an application outcome's field errors beside the page's fields.</summary>
+/// <summary>Puts an application result's field errors beside the page's fields.</summary>
 public static class PageSupport
 {
     /// <summary>Copies errors keyed like <c>settings.trimFraction</c> to <c>Input.Settings.TrimFraction</c>; a conflict or not-found goes to the summary.</summary>
-    public static void AddOutcome<T>(this ModelStateDictionary state, Outcome<T> outcome, string prefix = "Input")
+    public static void AddResult<T>(this ModelStateDictionary state, Result<T> result, string prefix = "Input")
     {
-        foreach (var (key, messages) in outcome.Errors)
+        foreach (var (key, messages) in result.Errors)
         {
             var field = string.Join('.', key.Split('.').Select(s => s.Length == 0 ? s : char.ToUpperInvariant(s[0]) + s[1..]));
             foreach (var m in messages)
@@ -18,9 +18,9 @@ public static class PageSupport
                 state.AddModelError(prefix.Length == 0 ? field : $"{prefix}.{field}", m);
             }
         }
-        if (outcome.Kind is OutcomeKind.Conflict or OutcomeKind.NotFound)
+        if (result.Kind is ResultKind.Conflict or ResultKind.NotFound)
         {
-            state.AddModelError(string.Empty, outcome.Message ?? "The operation was refused.");
+            state.AddModelError(string.Empty, result.Message ?? "The operation was refused.");
         }
     }
 

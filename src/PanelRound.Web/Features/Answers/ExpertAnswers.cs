@@ -28,7 +28,7 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
         var feedbackRound = round is { State: RoundState.Open }
             ? panel.Rounds.FirstOrDefault(r => r.Number == round.Number - 1 && r.State == RoundState.Closed)
             : panel.Rounds.Where(r => r.State == RoundState.Closed).MaxBy(r => r.Number);
-        var frozen = feedbackRound is null ? [] : await db.RoundFeedback.AsNoTracking().Where(f => f.RoundId == feedbackRound.Id).ToListAsync();
+        var frozen = feedbackRound is null ? [] : await db.FrozenFeedback.AsNoTracking().Where(f => f.RoundId == feedbackRound.Id).ToListAsync();
         var own = await db.Estimates.AsNoTracking().Where(e => e.MembershipId == m.Id).ToListAsync();
         var currentRows = round is null ? [] : own.Where(e => e.RoundId == round.Id).ToList();
         var previousRound = round is null ? null : panel.Rounds.FirstOrDefault(r => r.Number == round.Number - 1);
@@ -93,31 +93,31 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
     /// close reads the answers or is refused with a conflict: never acknowledged and then missed.
     /// Submissions only queue behind each other on that row; they do not fail.
     /// </remarks>
-    public async Task<Outcome<SubmissionReceipt>> SubmitAsync(int membershipId, SubmissionInput input)
+    public async Task<Result<SubmissionReceipt>> SubmitAsync(int membershipId, SubmissionInput input)
     {
         db.ChangeTracker.Clear();
         var m = await db.Memberships.SingleAsync(x => x.Id == membershipId);
         if (m.State == MembershipState.Revoked)
         {
-            return Outcome<SubmissionReceipt>.NotFound("This personal link is unknown or has been revoked.");
+            return Result<SubmissionReceipt>.NotFound("This personal link is unknown or has been revoked.");
         }
         var panel = await db.Panels.AsNoTracking().Include(p => p.Questions).ThenInclude(q => q.Indicator).Include(p => p.Rounds).SingleAsync(p => p.Id == m.PanelId);
         var (_, canAnswer, reason) = Status(panel);
         var round = panel.Rounds.FirstOrDefault(r => r.State == RoundState.Open);
         if (!canAnswer || round is null)
         {
-            return Outcome<SubmissionReceipt>.Conflict(reason ?? "No round is open.");
+            return Result<SubmissionReceipt>.Conflict(reason ?? "No round is open.");
         }
         var previous = panel.Rounds.FirstOrDefault(r => r.Number == round.Number - 1);
         var previousFeedback = previous is null || !panel.Settings.OutliersMustJustify
             ? []
-            : (await db.RoundFeedback.AsNoTracking().Where(f => f.RoundId == previous.Id && !f.Withheld)
+            : (await db.FrozenFeedback.AsNoTracking().Where(f => f.RoundId == previous.Id && !f.Withheld)
                     .Select(f => new { f.QuestionId, f.Period, f.StatisticsJson }).ToListAsync())
                 .ToDictionary(f => (f.QuestionId, f.Period), f => FeedbackView.FromJson(f.StatisticsJson).Shown?.Spread);
         var check = SubmissionValidator.Validate(panel.Questions, input, previousFeedback);
         if (check.Errors.Any)
         {
-            return Outcome<SubmissionReceipt>.Invalid(check.Errors);
+            return Result<SubmissionReceipt>.Invalid(check.Errors);
         }
         await using var tx = await db.Database.BeginTransactionAsync();
         var deadlineCheck = Now;
@@ -132,11 +132,11 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
         var now = Now;
         if (stillOpen == 0)
         {
-            return Outcome<SubmissionReceipt>.Conflict($"Round {round.Number} closed; answers can no longer be changed.");
+            return Result<SubmissionReceipt>.Conflict($"Round {round.Number} closed; answers can no longer be changed.");
         }
         if (stillMember == 0)
         {
-            return Outcome<SubmissionReceipt>.NotFound("This personal link is unknown or has been revoked.");
+            return Result<SubmissionReceipt>.NotFound("This personal link is unknown or has been revoked.");
         }
         var rows = check.Answers.Select(a => new Estimate
         {
@@ -146,6 +146,6 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
         db.Estimates.AddRange(rows);
         await db.SaveChangesAsync();
         await tx.CommitAsync();
-        return Outcome<SubmissionReceipt>.Ok(new SubmissionReceipt(round.Number, rows.Count, input.Draft, now, check.Warnings));
+        return Result<SubmissionReceipt>.Ok(new SubmissionReceipt(round.Number, rows.Count, input.Draft, now, check.Warnings));
     }
 }

@@ -82,14 +82,14 @@ public static class PastPanelCsv
     /// <param name="observations">The observations file, if any.</param>
     /// <param name="today">Today: an observation is known at the latest today.</param>
     /// <param name="lagDays">The publication lag assumed for observations without <c>observed_on</c> (<see cref="ObservationDates.AssumedObservedOn"/>).</param>
-    public static Outcome<PastPanelRows> Parse(Stream forecasts, Stream? observations, DateOnly today, int lagDays)
+    public static Result<PastPanelRows> Parse(Stream forecasts, Stream? observations, DateOnly today, int lagDays)
     {
         var report = new RowErrorReport();
         var forecastRows = ParseForecasts(forecasts, report);
         var observationRows = observations is null ? [] : ParseObservations(observations, report, today, lagDays);
         return report.Count > 0 || forecastRows is null || observationRows is null
-            ? Outcome<PastPanelRows>.Invalid(report.ToFieldErrors())
-            : Outcome<PastPanelRows>.Ok(new PastPanelRows(forecastRows, observationRows));
+            ? Result<PastPanelRows>.Invalid(report.ToFieldErrors())
+            : Result<PastPanelRows>.Ok(new PastPanelRows(forecastRows, observationRows));
     }
 
     /// <summary>Reads one of the files as every CSV import does; its errors go to the report.</summary>

@@ -45,7 +45,7 @@ public sealed record PastPanelImportResult(
 /// </remarks>
 public sealed class PastPanelImport(PanelRoundDbContext db, TimeProvider clock, ConsensusPublisher publisher, IOptions<ScoringOptions> options)
 {
-    public async Task<Outcome<PastPanelImportResult>> ImportAsync(Stream forecasts, Stream? observations, string actor)
+    public async Task<Result<PastPanelImportResult>> ImportAsync(Stream forecasts, Stream? observations, string actor)
     {
         var today = DateOnly.FromDateTime(clock.GetUtcNow().UtcDateTime);
         var parsed = PastPanelCsv.Parse(forecasts, observations, today, options.Value.ImportPublicationLagDays);
@@ -80,7 +80,7 @@ public sealed class PastPanelImport(PanelRoundDbContext db, TimeProvider clock, 
         }
         if (report.Count > 0)
         {
-            return Outcome<PastPanelImportResult>.Invalid(report.ToFieldErrors());
+            return Result<PastPanelImportResult>.Invalid(report.ToFieldErrors());
         }
 
         try
@@ -91,12 +91,12 @@ public sealed class PastPanelImport(PanelRoundDbContext db, TimeProvider clock, 
         {
             // A unique index refused a row: another import created the same panel, indicator or expert meanwhile.
             db.ChangeTracker.Clear();
-            return Outcome<PastPanelImportResult>.Conflict(
+            return Result<PastPanelImportResult>.Conflict(
                 "Another import of the same panels (or of the same new indicators or experts) finished meanwhile; nothing was imported. Reload and check before importing again.");
         }
     }
 
-    private async Task<Outcome<PastPanelImportResult>> SaveAsync(
+    private async Task<Result<PastPanelImportResult>> SaveAsync(
         IReadOnlyList<PastForecastRow> forecastRows, IReadOnlyList<PastObservationRow> observationRows, Dictionary<string, Indicator> indicators, string actor)
     {
         var now = clock.GetUtcNow().UtcDateTime;
@@ -210,7 +210,7 @@ public sealed class PastPanelImport(PanelRoundDbContext db, TimeProvider clock, 
         await db.SaveChangesAsync();
         await tx.CommitAsync();
         db.ChangeTracker.Clear();
-        return Outcome<PastPanelImportResult>.Ok(new PastPanelImportResult(
+        return Result<PastPanelImportResult>.Ok(new PastPanelImportResult(
             built.Count, built.Sum(b => b.Panel.Questions.Count), built.Sum(b => b.Panel.Rounds.Count), estimates, experts.Count, expertsCreated,
             indicatorsCreated, added, corrected, unchanged));
     }

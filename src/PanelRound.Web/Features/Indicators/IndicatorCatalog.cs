@@ -20,7 +20,7 @@ public sealed class IndicatorCatalog(PanelRoundDbContext db, TimeProvider clock)
 
     private DateOnly Today => DateOnly.FromDateTime(Now);
 
-    public async Task<Outcome<Indicator>> CreateIndicatorAsync(IndicatorInput input, string actor)
+    public async Task<Result<Indicator>> CreateIndicatorAsync(IndicatorInput input, string actor)
     {
         var errors = new FieldErrors();
         var key = errors.Required("key", input.Key, FieldLengths.IndicatorKey, "Key").ToLowerInvariant();
@@ -42,14 +42,14 @@ public sealed class IndicatorCatalog(PanelRoundDbContext db, TimeProvider clock)
         }
         if (errors.Any)
         {
-            return Outcome<Indicator>.Invalid(errors);
+            return Result<Indicator>.Invalid(errors);
         }
         var indicator = new Indicator { Key = key, Name = name, UnitLabel = unit, Decimals = decimals, Description = description, CreatedAt = Now };
         db.Indicators.Add(indicator);
         await db.SaveChangesAsync();
         Audit.Record(db, actor, "indicator.created", "Indicator", indicator.Id, details: new { indicator.Key, indicator.Name });
         await db.SaveChangesAsync();
-        return Outcome<Indicator>.Ok(indicator);
+        return Result<Indicator>.Ok(indicator);
     }
 
 
@@ -61,12 +61,12 @@ public sealed class IndicatorCatalog(PanelRoundDbContext db, TimeProvider clock)
     /// Values are finite with |v| ≤ 10¹² (<see cref="Numbers.MaxMagnitude"/>); the day a value became
     /// known (<c>observedOn</c>), when given, lies between the period's end and today.
     /// </remarks>
-    public async Task<Outcome<ObservationImportResult>> RecordObservationsAsync(int indicatorId, IReadOnlyList<ObservationInput> inputs, string actor, string fieldPrefix = "observations")
+    public async Task<Result<ObservationImportResult>> RecordObservationsAsync(int indicatorId, IReadOnlyList<ObservationInput> inputs, string actor, string fieldPrefix = "observations")
     {
         var indicator = await db.Indicators.FirstOrDefaultAsync(i => i.Id == indicatorId);
         if (indicator is null)
         {
-            return Outcome<ObservationImportResult>.NotFound($"Indicator {indicatorId} does not exist.");
+            return Result<ObservationImportResult>.NotFound($"Indicator {indicatorId} does not exist.");
         }
         var errors = new FieldErrors();
         if (inputs.Count == 0)
@@ -112,11 +112,11 @@ public sealed class IndicatorCatalog(PanelRoundDbContext db, TimeProvider clock)
         }
         if (errors.Any)
         {
-            return Outcome<ObservationImportResult>.Invalid(errors);
+            return Result<ObservationImportResult>.Invalid(errors);
         }
         var result = await ObservationHistory.RecordAsync(db, indicator, parsed, actor, Now);
         await db.SaveChangesAsync();
-        return Outcome<ObservationImportResult>.Ok(result);
+        return Result<ObservationImportResult>.Ok(result);
     }
 
     /// <summary>The current observations of an indicator, oldest first.</summary>

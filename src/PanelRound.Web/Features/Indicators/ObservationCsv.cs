@@ -9,13 +9,13 @@ public static class ObservationCsv
     /// Reads observation rows from CSV (columns <c>period</c>, <c>value</c>, optional <c>source</c>,
     /// <c>observed_on</c>) as the other imports do (<see cref="CsvUploads"/>); errors are keyed by row (<c>row 3</c>).
     /// </summary>
-    public static Outcome<IReadOnlyList<ObservationInput>> Parse(Stream csv)
+    public static Result<IReadOnlyList<ObservationInput>> Parse(Stream csv)
     {
         var errors = new FieldErrors();
         var table = CsvUploads.Read(csv, errors);
         if (table is null || !CsvUploads.RequireColumns(table, errors, ["period", "value"], "source, observed_on"))
         {
-            return Outcome<IReadOnlyList<ObservationInput>>.Invalid(errors);
+            return Result<IReadOnlyList<ObservationInput>>.Invalid(errors);
         }
         var list = new List<ObservationInput>();
         foreach (var r in table.Rows)
@@ -23,6 +23,6 @@ public static class ObservationCsv
             var (value, observedOn) = CsvUploads.ReadValueAndObservedOn(r, errors);
             list.Add(new ObservationInput(r["period"], value, r["source"], observedOn));
         }
-        return errors.Any ? Outcome<IReadOnlyList<ObservationInput>>.Invalid(errors) : Outcome<IReadOnlyList<ObservationInput>>.Ok(list);
+        return errors.Any ? Result<IReadOnlyList<ObservationInput>>.Invalid(errors) : Result<IReadOnlyList<ObservationInput>>.Ok(list);
     }
 }

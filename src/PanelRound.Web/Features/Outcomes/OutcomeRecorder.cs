@@ -20,17 +20,17 @@ public sealed record OutcomeInput(string? Indicator, string? Period, double? Val
 public sealed class OutcomeRecorder(PanelRoundDbContext db, IndicatorCatalog catalog, TimeProvider clock)
 {
     /// <summary>Records one outcome from the form; errors are keyed by field (indicator, period, value, source, observedOn).</summary>
-    public Task<Outcome<ObservationImportResult>> RecordAsync(OutcomeInput input, string actor) =>
+    public Task<Result<ObservationImportResult>> RecordAsync(OutcomeInput input, string actor) =>
         RecordAsync([input], actor, (_, field) => field);
 
     /// <summary>Reads outcome rows from CSV (columns <c>indicator</c>, <c>period</c>, <c>value</c>, optional <c>source</c>, <c>observed_on</c>) and records them all or none.</summary>
-    public async Task<Outcome<ObservationImportResult>> ImportCsvAsync(Stream csv, string actor)
+    public async Task<Result<ObservationImportResult>> ImportCsvAsync(Stream csv, string actor)
     {
         var errors = new FieldErrors();
         var table = CsvUploads.Read(csv, errors);
         if (table is null)
         {
-            return Outcome<ObservationImportResult>.Invalid(errors);
+            return Result<ObservationImportResult>.Invalid(errors);
         }
         CsvUploads.RequireColumns(table, errors, ["indicator", "period", "value"], "source, observed_on");
         if (table.Rows.Count == 0)
@@ -39,7 +39,7 @@ public sealed class OutcomeRecorder(PanelRoundDbContext db, IndicatorCatalog cat
         }
         if (errors.Any)
         {
-            return Outcome<ObservationImportResult>.Invalid(errors);
+            return Result<ObservationImportResult>.Invalid(errors);
         }
         var inputs = new List<OutcomeInput>();
         var rowNumbers = new List<int>();
@@ -51,12 +51,12 @@ public sealed class OutcomeRecorder(PanelRoundDbContext db, IndicatorCatalog cat
         }
         if (errors.Any)
         {
-            return Outcome<ObservationImportResult>.Invalid(errors);
+            return Result<ObservationImportResult>.Invalid(errors);
         }
         return await RecordAsync(inputs, actor, (i, _) => CsvUploads.RowKey(null, rowNumbers[i]));
     }
 
-    private async Task<Outcome<ObservationImportResult>> RecordAsync(IReadOnlyList<OutcomeInput> inputs, string actor, Func<int, string, string> keyOf)
+    private async Task<Result<ObservationImportResult>> RecordAsync(IReadOnlyList<OutcomeInput> inputs, string actor, Func<int, string, string> keyOf)
     {
         var errors = new FieldErrors();
         var today = DateOnly.FromDateTime(clock.GetUtcNow().UtcDateTime);
@@ -121,7 +121,7 @@ public sealed class OutcomeRecorder(PanelRoundDbContext db, IndicatorCatalog cat
         }
         if (errors.Any)
         {
-            return Outcome<ObservationImportResult>.Invalid(errors);
+            return Result<ObservationImportResult>.Invalid(errors);
         }
         await using var tx = await db.Database.BeginTransactionAsync();
         int added = 0, corrected = 0, unchanged = 0;
@@ -137,6 +137,6 @@ public sealed class OutcomeRecorder(PanelRoundDbContext db, IndicatorCatalog cat
             (added, corrected, unchanged) = (added + result.Value!.Added, corrected + result.Value.Corrected, unchanged + result.Value.Unchanged);
         }
         await tx.CommitAsync();
-        return Outcome<ObservationImportResult>.Ok(new ObservationImportResult(added, corrected, unchanged));
+        return Result<ObservationImportResult>.Ok(new ObservationImportResult(added, corrected, unchanged));
     }
 }

@@ -10,10 +10,19 @@ public sealed record QuestionDto(int Id, int IndicatorId, int Order, string Labe
         q.HardMin, q.HardMax, q.PlausibleMin, q.PlausibleMax, q.TargetPeriods.Split(','));
 }
 
-public sealed record PanelDto(int Id, string Title, string Brief, DateOnly StartsOn, IReadOnlyList<string> TargetPeriods, string State,
-    PanelSettings Settings, DateTime CreatedAt, DateTime? ConcludedAt, IReadOnlyList<QuestionDto> Questions, IReadOnlyList<RoundDto> Rounds)
+/// <summary>A panel's settings as the API shows them (rules and weighting by name, shares as fractions).</summary>
+public sealed record PanelSettingsDto(
+    OutlierRuleSetting OutlierRule, double TrimFraction, double ConsensusThreshold, double StabilityThreshold, int RoundCap, int MinimumGroupSize,
+    bool ShowRationales, bool OutliersMustJustify, ConsensusWeighting Weighting)
 {
-    public static PanelDto From(Panel p) => new(p.Id, p.Title, p.Brief, p.StartsOn, p.TargetPeriods.Split(','), p.State.ToString(), p.Settings,
+    public static PanelSettingsDto From(PanelSettings s) => new(
+        s.OutlierRule, s.TrimFraction, s.ConsensusThreshold, s.StabilityThreshold, s.RoundCap, s.MinimumGroupSize, s.ShowRationales, s.OutliersMustJustify, s.Weighting);
+}
+
+public sealed record PanelDto(int Id, string Title, string Brief, DateOnly StartsOn, IReadOnlyList<string> TargetPeriods, string State,
+    PanelSettingsDto Settings, DateTime CreatedAt, DateTime? ConcludedAt, IReadOnlyList<QuestionDto> Questions, IReadOnlyList<RoundDto> Rounds)
+{
+    public static PanelDto From(Panel p) => new(p.Id, p.Title, p.Brief, p.StartsOn, p.TargetPeriods.Split(','), p.State.ToString(), PanelSettingsDto.From(p.Settings),
         p.CreatedAt, p.ConcludedAt, p.Questions.OrderBy(q => q.Order).Select(QuestionDto.From).ToList(),
         p.Rounds.OrderBy(r => r.Number).Select(RoundDto.From).ToList());
 }

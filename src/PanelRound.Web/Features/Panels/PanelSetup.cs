@@ -26,31 +26,31 @@ public sealed class PanelSetup(PanelRoundDbContext db, TimeProvider clock)
     private void Log(string actor, string action, string entityType, object entityId, int? panelId, object? details = null) =>
         Audit.Record(db, actor, action, entityType, entityId, panelId, details, Now);
 
-    public async Task<Outcome<Panel>> CreatePanelAsync(PanelInput input, string actor)
+    public async Task<Result<Panel>> CreatePanelAsync(PanelInput input, string actor)
     {
         var panel = new Panel { CreatedAt = Now, CreatedBy = actor, State = PanelState.Draft, Version = Guid.NewGuid() };
         var errors = Apply(panel, input);
         if (errors.Any)
         {
-            return Outcome<Panel>.Invalid(errors);
+            return Result<Panel>.Invalid(errors);
         }
         db.Panels.Add(panel);
         await db.SaveChangesAsync();
         Log(actor, "panel.created", "Panel", panel.Id, panel.Id, new { panel.Title, panel.TargetPeriods });
         await db.SaveChangesAsync();
-        return Outcome<Panel>.Ok(panel);
+        return Result<Panel>.Ok(panel);
     }
 
-    public async Task<Outcome<Panel>> UpdatePanelAsync(int panelId, PanelInput input, string actor)
+    public async Task<Result<Panel>> UpdatePanelAsync(int panelId, PanelInput input, string actor)
     {
         var panel = await db.Panels.Include(p => p.Questions).FirstOrDefaultAsync(p => p.Id == panelId);
         if (panel is null)
         {
-            return Outcome<Panel>.NotFound($"Panel {panelId} does not exist.");
+            return Result<Panel>.NotFound($"Panel {panelId} does not exist.");
         }
         if (panel.State != PanelState.Draft)
         {
-            return Outcome<Panel>.Conflict("The panel can be edited only while it is a draft (before round 1 opens).");
+            return Result<Panel>.Conflict("The panel can be edited only while it is a draft (before round 1 opens).");
         }
         var errors = Apply(panel, input);
         var periods = panel.TargetPeriods.Split(',');
@@ -61,12 +61,12 @@ public sealed class PanelSetup(PanelRoundDbContext db, TimeProvider clock)
         if (errors.Any)
         {
             db.ChangeTracker.Clear();
-            return Outcome<Panel>.Invalid(errors);
+            return Result<Panel>.Invalid(errors);
         }
         panel.Version = Guid.NewGuid();
         Log(actor, "panel.edited", "Panel", panel.Id, panel.Id, new { panel.Title, panel.TargetPeriods, panel.Settings });
         await db.SaveChangesAsync();
-        return Outcome<Panel>.Ok(panel);
+        return Result<Panel>.Ok(panel);
     }
 
     private static FieldErrors Apply(Panel panel, PanelInput input)
@@ -102,27 +102,27 @@ public sealed class PanelSetup(PanelRoundDbContext db, TimeProvider clock)
         return errors;
     }
 
-    public async Task<Outcome<Question>> AddQuestionAsync(int panelId, QuestionInput input, string actor) =>
+    public async Task<Result<Question>> AddQuestionAsync(int panelId, QuestionInput input, string actor) =>
         await SaveQuestionAsync(panelId, null, input, actor);
 
-    public async Task<Outcome<Question>> UpdateQuestionAsync(int panelId, int questionId, QuestionInput input, string actor) =>
+    public async Task<Result<Question>> UpdateQuestionAsync(int panelId, int questionId, QuestionInput input, string actor) =>
         await SaveQuestionAsync(panelId, questionId, input, actor);
 
-    private async Task<Outcome<Question>> SaveQuestionAsync(int panelId, int? questionId, QuestionInput input, string actor)
+    private async Task<Result<Question>> SaveQuestionAsync(int panelId, int? questionId, QuestionInput input, string actor)
     {
         var panel = await db.Panels.Include(p => p.Questions).FirstOrDefaultAsync(p => p.Id == panelId);
         if (panel is null)
         {
-            return Outcome<Question>.NotFound($"Panel {panelId} does not exist.");
+            return Result<Question>.NotFound($"Panel {panelId} does not exist.");
         }
         if (panel.State != PanelState.Draft)
         {
-            return Outcome<Question>.Conflict("Questions can be changed only while the panel is a draft.");
+            return Result<Question>.Conflict("Questions can be changed only while the panel is a draft.");
         }
         var question = questionId is { } qid ? panel.Questions.FirstOrDefault(q => q.Id == qid) : new Question { Order = panel.Questions.Count + 1 };
         if (question is null)
         {
-            return Outcome<Question>.NotFound($"Question {questionId} is not on panel {panelId}.");
+            return Result<Question>.NotFound($"Question {questionId} is not on panel {panelId}.");
         }
         var errors = new FieldErrors();
         question.Label = errors.Required("label", input.Label, FieldLengths.Title, "Label");
@@ -177,7 +177,7 @@ public sealed class PanelSetup(PanelRoundDbContext db, TimeProvider clock)
         if (errors.Any)
         {
             db.ChangeTracker.Clear();
-            return Outcome<Question>.Invalid(errors);
+            return Result<Question>.Invalid(errors);
         }
         if (questionId is null)
         {
@@ -191,28 +191,28 @@ public sealed class PanelSetup(PanelRoundDbContext db, TimeProvider clock)
         }
         catch (DbUpdateConcurrencyException)
         {
-            return Outcome<Question>.Conflict("The panel changed meanwhile (a round may have opened); reload and try again.");
+            return Result<Question>.Conflict("The panel changed meanwhile (a round may have opened); reload and try again.");
         }
         Log(actor, questionId is null ? "question.added" : "question.edited", "Question", question.Id, panelId, new { question.Label, question.Format, question.TargetPeriods });
         await db.SaveChangesAsync();
-        return Outcome<Question>.Ok(question);
+        return Result<Question>.Ok(question);
     }
 
-    public async Task<Outcome<bool>> RemoveQuestionAsync(int panelId, int questionId, string actor)
+    public async Task<Result<bool>> RemoveQuestionAsync(int panelId, int questionId, string actor)
     {
         var panel = await db.Panels.Include(p => p.Questions).FirstOrDefaultAsync(p => p.Id == panelId);
         var question = panel?.Questions.FirstOrDefault(q => q.Id == questionId);
         if (panel is null || question is null)
         {
-            return Outcome<bool>.NotFound($"Question {questionId} is not on panel {panelId}.");
+            return Result<bool>.NotFound($"Question {questionId} is not on panel {panelId}.");
         }
         if (panel.State != PanelState.Draft)
         {
-            return Outcome<bool>.Conflict("Questions can be removed only while the panel is a draft.");
+            return Result<bool>.Conflict("Questions can be removed only while the panel is a draft.");
         }
         db.Questions.Remove(question);
         Log(actor, "question.removed", "Question", questionId, panelId, new { question.Label });
         await db.SaveChangesAsync();
-        return Outcome<bool>.Ok(true);
+        return Result<bool>.Ok(true);
     }
 }

@@ -14,25 +14,25 @@ public sealed class PanelConclusion(PanelRoundDbContext db, TimeProvider clock, 
         Audit.Record(db, actor, action, entityType, entityId, panelId, details, Now);
 
     /// <summary>Concludes the panel: publishes the consensus of its last closed round; read-only from then on.</summary>
-    public async Task<Outcome<IReadOnlyList<ConsensusEntry>>> ConcludeAsync(int panelId, string actor)
+    public async Task<Result<IReadOnlyList<ConsensusEntry>>> ConcludeAsync(int panelId, string actor)
     {
         var panel = await db.Panels.Include(p => p.Rounds).Include(p => p.Questions).FirstOrDefaultAsync(p => p.Id == panelId);
         if (panel is null)
         {
-            return Outcome<IReadOnlyList<ConsensusEntry>>.NotFound($"Panel {panelId} does not exist.");
+            return Result<IReadOnlyList<ConsensusEntry>>.NotFound($"Panel {panelId} does not exist.");
         }
         if (panel.State == PanelState.Concluded)
         {
-            return Outcome<IReadOnlyList<ConsensusEntry>>.Conflict("The panel has concluded already.");
+            return Result<IReadOnlyList<ConsensusEntry>>.Conflict("The panel has concluded already.");
         }
         if (panel.Rounds.Any(r => r.State == RoundState.Open))
         {
-            return Outcome<IReadOnlyList<ConsensusEntry>>.Conflict("Close the open round before concluding.");
+            return Result<IReadOnlyList<ConsensusEntry>>.Conflict("Close the open round before concluding.");
         }
         var last = panel.Rounds.Where(r => r.State == RoundState.Closed).MaxBy(r => r.Number);
         if (last is null)
         {
-            return Outcome<IReadOnlyList<ConsensusEntry>>.Conflict("No round has closed yet: there is nothing to publish.");
+            return Result<IReadOnlyList<ConsensusEntry>>.Conflict("No round has closed yet: there is nothing to publish.");
         }
         var entries = await publisher.ComputeAsync(panel, last);
         await using var tx = await db.Database.BeginTransactionAsync();
@@ -48,9 +48,9 @@ public sealed class PanelConclusion(PanelRoundDbContext db, TimeProvider clock, 
         }
         catch (DbUpdateException)
         {
-            return Outcome<IReadOnlyList<ConsensusEntry>>.Conflict("The panel changed while concluding (it may have been concluded already); reload and try again.");
+            return Result<IReadOnlyList<ConsensusEntry>>.Conflict("The panel changed while concluding (it may have been concluded already); reload and try again.");
         }
         await tx.CommitAsync();
-        return Outcome<IReadOnlyList<ConsensusEntry>>.Ok(entries);
+        return Result<IReadOnlyList<ConsensusEntry>>.Ok(entries);
     }
 }

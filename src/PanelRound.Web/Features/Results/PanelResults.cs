@@ -4,6 +4,7 @@ using PanelRound.Core.Statistics;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
 using PanelRound.Web.Features.Indicators;
+using PanelRound.Web.Features.Panels;
 using PanelRound.Web.Features.Rounds;
 
 namespace PanelRound.Web.Features.Results;
@@ -13,13 +14,13 @@ public sealed record RoundResult(
     int Round, bool Frozen, FeedbackView Feedback, ConvergenceAssessment Convergence, StabilityAssessment? Stability,
     IReadOnlyList<string> OutlierCodes);
 
-public sealed record PeriodResult(string Period, IReadOnlyList<RoundResult> Rounds, StopSuggestion? Suggestion, ConsensusEntry? Consensus);
+public sealed record PeriodResult(string Period, IReadOnlyList<RoundResult> Rounds, StopSuggestion? Suggestion, ConsensusEntryDto? Consensus);
 
 public sealed record QuestionResult(
     int QuestionId, string Label, ResponseFormat Format, string Unit, int Decimals, IReadOnlyList<SeriesPoint> Reference,
     IReadOnlyList<PeriodResult> Periods, StopReason Suggestion, string SuggestionText, IReadOnlyList<string> Rationales);
 
-public sealed record PanelResultsView(int PanelId, string Title, PanelState State, PanelSettings Settings, IReadOnlyList<QuestionResult> Questions);
+public sealed record PanelResultsView(int PanelId, string Title, PanelState State, PanelSettingsDto Settings, IReadOnlyList<QuestionResult> Questions);
 
 /// <summary>
 /// The facilitator's results per question: the distribution per round (frozen for closed rounds,
@@ -46,7 +47,7 @@ public sealed class PanelResults(PanelRoundDbContext db)
             answersByRound[r.Number] = (await CountedAnswers.LoadAsync(db, r.Id)).ToLookup(a => (a.QuestionId, a.Period));
         }
         var references = await IndicatorCatalog.ReferenceSeriesAsync(db, panel.Questions.Select(q => q.IndicatorId).Distinct().ToList(), panel.StartsOn);
-        var frozen = (await db.RoundFeedback.AsNoTracking().Where(f => rounds.Select(r => r.Id).Contains(f.RoundId)).ToListAsync())
+        var frozen = (await db.FrozenFeedback.AsNoTracking().Where(f => rounds.Select(r => r.Id).Contains(f.RoundId)).ToListAsync())
             .ToDictionary(f => (f.RoundId, f.QuestionId, f.Period));
         var consensus = await db.Consensus.AsNoTracking().Where(c => c.PanelId == panelId).ToListAsync();
 
@@ -79,7 +80,7 @@ public sealed class PanelResults(PanelRoundDbContext db)
                 }
                 var last = list.LastOrDefault();
                 var suggestion = last is null ? null : StopAdvice.Suggest(last.Convergence, last.Stability, last.Round, panel.Settings.RoundCap);
-                periods.Add(new PeriodResult(period, list, suggestion, consensus.FirstOrDefault(c => c.QuestionId == q.Id && c.Period == period)));
+                periods.Add(new PeriodResult(period, list, suggestion, consensus.FirstOrDefault(c => c.QuestionId == q.Id && c.Period == period) is { } entry ? ConsensusEntryDto.From(entry) : null));
             }
             var stop = StopAdvice.ForQuestion([.. periods.Select(p => new PeriodStop(p.Period, p.Suggestion))]);
             var latestFrozen = rounds.Where(r => r.State == RoundState.Closed).MaxBy(r => r.Number);
@@ -90,14 +91,14 @@ public sealed class PanelResults(PanelRoundDbContext db)
             var reference = references[q.IndicatorId].ToList();
             questions.Add(new QuestionResult(q.Id, q.Label, q.Format, q.Indicator!.UnitLabel, q.Indicator.Decimals, reference, periods, stop.Reason, stop.Explanation, rationales));
         }
-        return new PanelResultsView(panel.Id, panel.Title, panel.State, panel.Settings, questions);
+        return new PanelResultsView(panel.Id, panel.Title, panel.State, PanelSettingsDto.From(panel.Settings), questions);
     }
 
     /// <summary>The panel codes whose answers the outlier rule excludes (staff only: codes, never names).</summary>
     private static IReadOnlyList<string> OutlierCodes(IReadOnlyList<CountedAnswer> answers, FeedbackSettings settings, IReadOnlyDictionary<int, string> codes)
     {
         var usable = answers.Where(a => double.IsFinite(a.Headline)).ToList();
-        var result = Core.Statistics.RoundFeedback.ForPoint(usable.Select(a => a.Headline).ToList(), settings);
+        var result = RoundFeedback.ForPoint(usable.Select(a => a.Headline).ToList(), settings);
         if (result.Feedback is not { } f)
         {
             return [];

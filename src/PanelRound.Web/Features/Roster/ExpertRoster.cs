@@ -13,7 +13,7 @@ public sealed class ExpertRoster(PanelRoundDbContext db, TimeProvider clock)
 {
     private DateTime Now => clock.GetUtcNow().UtcDateTime;
 
-    public async Task<Outcome<Expert>> CreateExpertAsync(ExpertInput input, string actor)
+    public async Task<Result<Expert>> CreateExpertAsync(ExpertInput input, string actor)
     {
         var errors = new FieldErrors();
         var name = errors.Required("name", input.Name, FieldLengths.Name, "Name");
@@ -41,12 +41,12 @@ public sealed class ExpertRoster(PanelRoundDbContext db, TimeProvider clock)
         };
         if (errors.Any)
         {
-            return Outcome<Expert>.Invalid(errors);
+            return Result<Expert>.Invalid(errors);
         }
         db.Experts.Add(expert);
         await db.SaveChangesAsync();
         Audit.Record(db, actor, "expert.created", "Expert", expert.Id);
         await db.SaveChangesAsync();
-        return Outcome<Expert>.Ok(expert);
+        return Result<Expert>.Ok(expert);
     }
 }

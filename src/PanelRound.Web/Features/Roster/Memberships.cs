@@ -28,27 +28,27 @@ public sealed class Memberships(PanelRoundDbContext db, TimeProvider clock, IMai
     /// Adds an expert of the roster to the panel with a random panel code and a new personal link. The
     /// link is returned (to be shown once) whether or not the invitation could be sent.
     /// </summary>
-    public async Task<Outcome<IssuedLink>> AddMemberAsync(int panelId, int expertId, string actor, string baseUrl, bool sendInvitation = true)
+    public async Task<Result<IssuedLink>> AddMemberAsync(int panelId, int expertId, string actor, string baseUrl, bool sendInvitation = true)
     {
         var panel = await db.Panels.FirstOrDefaultAsync(p => p.Id == panelId);
         if (panel is null)
         {
-            return Outcome<IssuedLink>.NotFound($"Panel {panelId} does not exist.");
+            return Result<IssuedLink>.NotFound($"Panel {panelId} does not exist.");
         }
         if (panel.State == PanelState.Concluded)
         {
-            return Outcome<IssuedLink>.Conflict("The panel has concluded; no experts can be added.");
+            return Result<IssuedLink>.Conflict("The panel has concluded; no experts can be added.");
         }
         var expert = await db.Experts.FirstOrDefaultAsync(e => e.Id == expertId);
         if (expert is null)
         {
             var errors = new FieldErrors();
             errors.Add("expertId", "Choose an expert from the roster.");
-            return Outcome<IssuedLink>.Invalid(errors);
+            return Result<IssuedLink>.Invalid(errors);
         }
         if (await db.Memberships.AnyAsync(m => m.PanelId == panelId && m.ExpertId == expertId))
         {
-            return Outcome<IssuedLink>.Conflict($"{expert.Name} is on this panel already; re-issue the link instead.");
+            return Result<IssuedLink>.Conflict($"{expert.Name} is on this panel already; re-issue the link instead.");
         }
         var token = Secrets.NewToken();
         var membership = new PanelMembership
@@ -65,20 +65,20 @@ public sealed class Memberships(PanelRoundDbContext db, TimeProvider clock, IMai
         {
             await TrySendAsync(actor, panelId, membership.Id, "invitation", MemberMail.Invitation(expert, panel, baseUrl.TrimEnd('/') + link.Path));
         }
-        return Outcome<IssuedLink>.Ok(link);
+        return Result<IssuedLink>.Ok(link);
     }
 
     /// <summary>Issues a new token for a membership; the old link stops working at once. The link is returned whether or not its message could be sent.</summary>
-    public async Task<Outcome<IssuedLink>> ReissueLinkAsync(int panelId, int membershipId, string actor, string baseUrl, bool sendInvitation = true)
+    public async Task<Result<IssuedLink>> ReissueLinkAsync(int panelId, int membershipId, string actor, string baseUrl, bool sendInvitation = true)
     {
         var m = await db.Memberships.Include(x => x.Expert).Include(x => x.Panel).FirstOrDefaultAsync(x => x.Id == membershipId && x.PanelId == panelId);
         if (m is null)
         {
-            return Outcome<IssuedLink>.NotFound($"Membership {membershipId} is not on panel {panelId}.");
+            return Result<IssuedLink>.NotFound($"Membership {membershipId} is not on panel {panelId}.");
         }
         if (m.Panel!.State == PanelState.Concluded)
         {
-            return Outcome<IssuedLink>.Conflict("The panel has concluded; its memberships are read-only.");
+            return Result<IssuedLink>.Conflict("The panel has concluded; its memberships are read-only.");
         }
         var token = Secrets.NewToken();
         m.TokenHash = Secrets.Hash(token);
@@ -93,19 +93,19 @@ public sealed class Memberships(PanelRoundDbContext db, TimeProvider clock, IMai
         {
             await TrySendAsync(actor, panelId, m.Id, "new-link", MemberMail.NewLink(m.Expert!, m.Panel, baseUrl.TrimEnd('/') + link.Path));
         }
-        return Outcome<IssuedLink>.Ok(link);
+        return Result<IssuedLink>.Ok(link);
     }
 
-    public async Task<Outcome<bool>> RevokeLinkAsync(int panelId, int membershipId, string actor)
+    public async Task<Result<bool>> RevokeLinkAsync(int panelId, int membershipId, string actor)
     {
         var m = await db.Memberships.Include(x => x.Panel).FirstOrDefaultAsync(x => x.Id == membershipId && x.PanelId == panelId);
         if (m is null)
         {
-            return Outcome<bool>.NotFound($"Membership {membershipId} is not on panel {panelId}.");
+            return Result<bool>.NotFound($"Membership {membershipId} is not on panel {panelId}.");
         }
         if (m.Panel!.State == PanelState.Concluded)
         {
-            return Outcome<bool>.Conflict("The panel has concluded; its memberships are read-only.");
+            return Result<bool>.Conflict("The panel has concluded; its memberships are read-only.");
         }
         m.State = MembershipState.Revoked;
         m.RevokedAt = Now;
@@ -113,7 +113,7 @@ public sealed class Memberships(PanelRoundDbContext db, TimeProvider clock, IMai
         m.TokenHash = Secrets.Hash(Secrets.NewToken());
         Log(actor, "link.revoked", "Membership", m.Id, panelId, new { m.PanelCode });
         await db.SaveChangesAsync();
-        return Outcome<bool>.Ok(true);
+        return Result<bool>.Ok(true);
     }
 
     /// <summary>
@@ -121,17 +121,17 @@ public sealed class Memberships(PanelRoundDbContext db, TimeProvider clock, IMai
     /// does not stop the others. Every send is audited (<c>mail.sent</c> or <c>mail.failed</c>), and
     /// the batch as <c>reminders.sent</c>.
     /// </summary>
-    public async Task<Outcome<MailReport>> SendRemindersAsync(int panelId, string actor)
+    public async Task<Result<MailReport>> SendRemindersAsync(int panelId, string actor)
     {
         var panel = await db.Panels.Include(p => p.Rounds).FirstOrDefaultAsync(p => p.Id == panelId);
         var round = panel?.Rounds.FirstOrDefault(r => r.State == RoundState.Open);
         if (panel is null)
         {
-            return Outcome<MailReport>.NotFound($"Panel {panelId} does not exist.");
+            return Result<MailReport>.NotFound($"Panel {panelId} does not exist.");
         }
         if (round is null)
         {
-            return Outcome<MailReport>.Conflict("No round is open.");
+            return Result<MailReport>.Conflict("No round is open.");
         }
         var answered = await RoundResponses.AnsweredAsync(db, round.Id);
         var pending = (await db.Memberships.Include(m => m.Expert)
@@ -145,7 +145,7 @@ public sealed class Memberships(PanelRoundDbContext db, TimeProvider clock, IMai
         }
         Log(actor, "reminders.sent", "Round", round.Id, panelId, new { round.Number, count = sent, failed });
         await db.SaveChangesAsync();
-        return Outcome<MailReport>.Ok(new MailReport(sent, failed));
+        return Result<MailReport>.Ok(new MailReport(sent, failed));
     }
 
     /// <summary>

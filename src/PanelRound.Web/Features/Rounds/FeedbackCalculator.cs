@@ -43,13 +43,13 @@ public static class FeedbackCalculator
     {
         if (question.Format == ResponseFormat.Range)
         {
-            var r = Core.Statistics.RoundFeedback.ForRange(RangesOf(answers), settings);
+            var r = RoundFeedback.ForRange(RangesOf(answers), settings);
             return r.Feedback is { } f
                 ? new FeedbackView(question.Id, period, r.N, r.MinimumGroupSize, false, null,
                     new RangeStatsView(StatsView.From(f.P10), StatsView.From(f.P50), StatsView.From(f.P90), f.AggregatedP10, f.AggregatedP50, f.AggregatedP90))
                 : new FeedbackView(question.Id, period, r.N, r.MinimumGroupSize, true, null, null);
         }
-        var p = Core.Statistics.RoundFeedback.ForPoint(PointsOf(answers), settings);
+        var p = RoundFeedback.ForPoint(PointsOf(answers), settings);
         return p.Feedback is { } pf
             ? new FeedbackView(question.Id, period, p.N, p.MinimumGroupSize, false, StatsView.From(pf), null)
             : new FeedbackView(question.Id, period, p.N, p.MinimumGroupSize, true, null, null);

@@ -29,7 +29,7 @@ public static class FeedbackFreezer
                 var forPeriod = toQuestion.Where(a => a.Period == period).ToList();
                 var view = FeedbackCalculator.Compute(q, period, forPeriod, settings);
                 var rationales = view.Withheld || !panelSettings.ShowRationales ? [] : FeedbackCalculator.Rationales(toQuestion);
-                db.RoundFeedback.Add(new RoundFeedback
+                db.FrozenFeedback.Add(new FrozenFeedback
                 {
                     RoundId = roundId, QuestionId = q.Id, Period = period, N = view.N, Withheld = view.Withheld,
                     StatisticsJson = view.ToJson(), RationalesJson = JsonSerializer.Serialize(rationales),

@@ -65,10 +65,10 @@ public sealed class RoundDeadlineService(IServiceScopeFactory scopes, Microsoft.
             string? failure;
             try
             {
-                var outcome = await workflow.CloseRoundAsync(r.PanelId, r.Number, "system:deadline");
-                closed += outcome.IsOk ? 1 : 0;
+                var result = await workflow.CloseRoundAsync(r.PanelId, r.Number, "system:deadline");
+                closed += result.IsOk ? 1 : 0;
                 // "Closed already" means another closer won: not a failure.
-                failure = outcome.IsOk || outcome.Message?.Contains("closed already", StringComparison.Ordinal) == true ? null : outcome.Message;
+                failure = result.IsOk || result.Message?.Contains("closed already", StringComparison.Ordinal) == true ? null : result.Message;
             }
             catch (Exception e) when (e is not OperationCanceledException)
             {

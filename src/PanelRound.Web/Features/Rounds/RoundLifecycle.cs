@@ -18,20 +18,20 @@ public sealed class RoundLifecycle(PanelRoundDbContext db, TimeProvider clock)
         Audit.Record(db, actor, action, entityType, entityId, panelId, details, Now);
 
     /// <summary>Opens the next round with a deadline; the first opening ends the draft.</summary>
-    public async Task<Outcome<Round>> OpenRoundAsync(int panelId, DateTime? closesAt, string actor)
+    public async Task<Result<Round>> OpenRoundAsync(int panelId, DateTime? closesAt, string actor)
     {
         var panel = await db.Panels.Include(p => p.Rounds).Include(p => p.Questions).Include(p => p.Memberships).FirstOrDefaultAsync(p => p.Id == panelId);
         if (panel is null)
         {
-            return Outcome<Round>.NotFound($"Panel {panelId} does not exist.");
+            return Result<Round>.NotFound($"Panel {panelId} does not exist.");
         }
         if (panel.State == PanelState.Concluded)
         {
-            return Outcome<Round>.Conflict("The panel has concluded.");
+            return Result<Round>.Conflict("The panel has concluded.");
         }
         if (panel.Rounds.Any(r => r.State == RoundState.Open))
         {
-            return Outcome<Round>.Conflict("A round is open already; close it first.");
+            return Result<Round>.Conflict("A round is open already; close it first.");
         }
         var errors = new FieldErrors();
         var deadline = closesAt is { } c ? DateTime.SpecifyKind(c.Kind == DateTimeKind.Local ? c.ToUniversalTime() : c, DateTimeKind.Utc) : (DateTime?)null;
@@ -49,12 +49,12 @@ public sealed class RoundLifecycle(PanelRoundDbContext db, TimeProvider clock)
         }
         if (errors.Any)
         {
-            return Outcome<Round>.Invalid(errors);
+            return Result<Round>.Invalid(errors);
         }
         var number = panel.Rounds.Count == 0 ? 1 : panel.Rounds.Max(r => r.Number) + 1;
         if (number > panel.Settings.RoundCap)
         {
-            return Outcome<Round>.Conflict($"The panel's round cap is {panel.Settings.RoundCap}: conclude it instead of opening round {number}.");
+            return Result<Round>.Conflict($"The panel's round cap is {panel.Settings.RoundCap}: conclude it instead of opening round {number}.");
         }
         var round = new Round { PanelId = panelId, Number = number, State = RoundState.Open, OpensAt = Now, ClosesAt = deadline!.Value, Version = Guid.NewGuid() };
         panel.Rounds.Add(round);
@@ -67,11 +67,11 @@ public sealed class RoundLifecycle(PanelRoundDbContext db, TimeProvider clock)
         catch (DbUpdateException)
         {
             // Another request opened a round or changed the panel at the same moment.
-            return Outcome<Round>.Conflict("The panel changed while opening the round (another round may have opened); reload and try again.");
+            return Result<Round>.Conflict("The panel changed while opening the round (another round may have opened); reload and try again.");
         }
         Log(actor, "round.opened", "Round", round.Id, panelId, new { round.Number, round.ClosesAt });
         await db.SaveChangesAsync();
-        return Outcome<Round>.Ok(round);
+        return Result<Round>.Ok(round);
     }
 
     /// <summary>
@@ -85,14 +85,14 @@ public sealed class RoundLifecycle(PanelRoundDbContext db, TimeProvider clock)
     /// later ones find the round closed. A second closer (another instance, the deadline service)
     /// updates no row and gets a conflict.
     /// </remarks>
-    public async Task<Outcome<Round>> CloseRoundAsync(int panelId, int roundNumber, string actor)
+    public async Task<Result<Round>> CloseRoundAsync(int panelId, int roundNumber, string actor)
     {
         db.ChangeTracker.Clear();
         var panel = await db.Panels.AsNoTracking().Include(p => p.Questions).Include(p => p.Memberships).FirstOrDefaultAsync(p => p.Id == panelId);
         var round = panel is null ? null : await db.Rounds.AsNoTracking().FirstOrDefaultAsync(r => r.PanelId == panelId && r.Number == roundNumber);
         if (panel is null || round is null)
         {
-            return Outcome<Round>.NotFound($"Round {roundNumber} of panel {panelId} does not exist.");
+            return Result<Round>.NotFound($"Round {roundNumber} of panel {panelId} does not exist.");
         }
         var now = Now;
         await using var tx = await db.Database.BeginTransactionAsync();
@@ -101,19 +101,19 @@ public sealed class RoundLifecycle(PanelRoundDbContext db, TimeProvider clock)
                 .SetProperty(r => r.ClosedBy, actor).SetProperty(r => r.Version, Guid.NewGuid()));
         if (flipped == 0)
         {
-            return Outcome<Round>.Conflict($"Round {roundNumber} is closed already.");
+            return Result<Round>.Conflict($"Round {roundNumber} is closed already.");
         }
         var answers = await CountedAnswers.LoadAsync(db, round.Id);
         if (OutOfDomain(panel, answers) is { } problem)
         {
             // The transaction is rolled back: the round stays open until the cause is removed.
-            return Outcome<Round>.Conflict($"Round {roundNumber} cannot close: {problem}");
+            return Result<Round>.Conflict($"Round {roundNumber} cannot close: {problem}");
         }
         FeedbackFreezer.Freeze(db, round.Id, panel.Questions, answers, panel.Settings);
         Log(actor, "round.closed", "Round", round.Id, panelId, new { round.Number, answers = answers.Select(a => a.MembershipId).Distinct().Count() });
         await db.SaveChangesAsync();
         await tx.CommitAsync();
-        return Outcome<Round>.Ok(await db.Rounds.AsNoTracking().SingleAsync(r => r.Id == round.Id));
+        return Result<Round>.Ok(await db.Rounds.AsNoTracking().SingleAsync(r => r.Id == round.Id));
     }
 
     /// <summary>

@@ -34,7 +34,7 @@ public static class RoundsApi
         {
             return ApiResults.NotFound($"Round {number} of panel {id} is not closed or does not exist.");
         }
-        var rows = await db.RoundFeedback.AsNoTracking().Where(f => f.RoundId == round.Id).OrderBy(f => f.QuestionId).ThenBy(f => f.Period).ToListAsync();
+        var rows = await db.FrozenFeedback.AsNoTracking().Where(f => f.RoundId == round.Id).OrderBy(f => f.QuestionId).ThenBy(f => f.Period).ToListAsync();
         return TypedResults.Ok(rows.Select(r => FeedbackView.FromJson(r.StatisticsJson)).ToList());
     }
 

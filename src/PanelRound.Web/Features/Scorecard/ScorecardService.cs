@@ -79,7 +79,7 @@ public sealed record ConsensusComparison(
 
 /// <summary>The reviewer's views of scores: the scorecard, an expert's record, a panel's record, the backtest, equal against weighted consensus.</summary>
 public sealed class ScorecardService(
-    PanelRoundDbContext db, ScoringService scoring, TrackRecordWeightsService weights, ConsensusPublisher publisher,
+    PanelRoundDbContext db, ScoringDataLoader scoring, TrackRecordWeightsService weights, ConsensusPublisher publisher,
     IOptions<ScoringOptions> options, TimeProvider clock)
 {
     private double K => options.Value.PseudoForecasts;
@@ -119,7 +119,7 @@ public sealed class ScorecardService(
         {
             var e = await db.Experts.AsNoTracking().FirstOrDefaultAsync(x => x.Id == expertId);
             return e is null ? null : new ExpertScorecardView(
-                new ScoredExpert(e.Id, ScoringService.ExpertKeyOf(e.Id), ScoringService.ExpertKeyOf(e.ExternalKey, e.Email), e.Name), null, []);
+                new ScoredExpert(e.Id, ScoringDataLoader.ExpertKeyOf(e.Id), ScoringDataLoader.ExpertKeyOf(e.ExternalKey, e.Email), e.Name), null, []);
         }
         var own = data.ExpertItems.Where(i => i.ExpertKey == expert.Key).ToList();
         // The rank is a place among all experts: score everyone, as the unfiltered scorecard does, and take this expert's line.

@@ -25,7 +25,7 @@ public sealed record MemberWeight(
 /// <param name="PoolMeanError">The pool mean of the scaled error; null when nobody has a record (the weights are then equal).</param>
 /// <param name="Members">One line per membership, by panel code.</param>
 public sealed record MemberWeightSet(
-    [property: JsonConverter(typeof(JsonStringEnumConverter<TrackRecordMeasure>))] TrackRecordMeasure Measure, int RecordN, double? PoolMeanError,
+    TrackRecordMeasure Measure, int RecordN, double? PoolMeanError,
     IReadOnlyList<MemberWeight> Members)
 {
     /// <summary>True when someone had a record, so the weights can differ from equal weights.</summary>
@@ -57,7 +57,7 @@ public sealed record PanelWeights(int PanelId, DateTime AsOf, int HistoryItems, 
 /// normalised over the panel's members. As in the backtest, Point questions use the scaled
 /// absolute error and Range questions the scaled interval score.
 /// </summary>
-public sealed class TrackRecordWeightsService(PanelRoundDbContext db, ScoringService scoring, IOptions<ScoringOptions> options) : IMemberWeights
+public sealed class TrackRecordWeightsService(PanelRoundDbContext db, ScoringDataLoader scoring, IOptions<ScoringOptions> options) : IMemberWeights
 {
     public async Task<MemberWeightsByFormat?> ForPanelAsync(int panelId, DateTime asOf) =>
         (await DetailAsync(panelId, asOf))?.ByFormat;
@@ -78,7 +78,7 @@ public sealed class TrackRecordWeightsService(PanelRoundDbContext db, ScoringSer
         data ??= await scoring.LoadAsync();
         var day = DateOnly.FromDateTime(asOf);
         var known = data.ExpertItems.Where(i => Backtest.IsKnownBefore(i, day)).ToList();
-        var keys = members.Select(m => ScoringService.ExpertKeyOf(m.ExpertId)).Distinct(StringComparer.Ordinal).ToList();
+        var keys = members.Select(m => ScoringDataLoader.ExpertKeyOf(m.ExpertId)).Distinct(StringComparer.Ordinal).ToList();
         var k = options.Value.PseudoForecasts;
 
         MemberWeightSet Set(TrackRecordMeasure measure)
@@ -87,7 +87,7 @@ public sealed class TrackRecordWeightsService(PanelRoundDbContext db, ScoringSer
             var byKey = set.Experts.ToDictionary(e => e.ExpertKey, StringComparer.Ordinal);
             var lines = members.Select(m =>
             {
-                var w = byKey[ScoringService.ExpertKeyOf(m.ExpertId)];
+                var w = byKey[ScoringDataLoader.ExpertKeyOf(m.ExpertId)];
                 return new MemberWeight(
                     m.Id, m.PanelCode, w.ExpertKey, w.N, Figures.Finite(w.PooledScaledError), set.PoolMeanError is null ? null : Figures.Finite(w.ShrunkError), w.Weight);
             }).ToList();

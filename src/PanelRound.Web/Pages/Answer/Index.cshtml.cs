@@ -113,16 +113,16 @@ public class IndexModel(PanelRoundDbContext db, ExpertAnswers answers) : PageMod
                 Read(p.P50, $"answers[{qi}].periods[{pi}].p50"), Read(p.P90, $"answers[{qi}].periods[{pi}].p90"))).ToList())).ToList());
         if (ModelState.ErrorCount == 0)
         {
-            var outcome = await answers.SubmitAsync(m.Id, input);
-            if (outcome.IsOk)
+            var result = await answers.SubmitAsync(m.Id, input);
+            if (result.IsOk)
             {
-                var r = outcome.Value!;
+                var r = result.Value!;
                 Saved = draft ? $"Draft saved ({r.Saved} values). It does not count until you submit." : $"Submitted for round {r.Round}: {r.Saved} values. You can revise until the round closes; the latest submission counts.";
                 SavedWarnings = string.Join('\n', r.Warnings);
                 return RedirectToPage(new { decimals = Decimals });
             }
-            ModelState.AddOutcome(outcome, "");
-            Conflict = outcome.Kind == OutcomeKind.Conflict ? outcome.Message : null;
+            ModelState.AddResult(result, "");
+            Conflict = result.Kind == ResultKind.Conflict ? result.Message : null;
         }
         Form = await answers.GetFormAsync(m.Id);
         return Page();

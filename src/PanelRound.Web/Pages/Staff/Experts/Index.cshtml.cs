@@ -37,10 +37,10 @@ public class IndexModel(PanelRoundDbContext db, ExpertRoster roster) : PageModel
 
     public async Task<IActionResult> OnPostAsync()
     {
-        var outcome = await roster.CreateExpertAsync(new ExpertInput(Input.Name, Input.Email, Input.Affiliation, Input.Expertise, Input.DeclaredInterests), Audit.ActorOf(User));
-        if (!outcome.IsOk)
+        var result = await roster.CreateExpertAsync(new ExpertInput(Input.Name, Input.Email, Input.Affiliation, Input.Expertise, Input.DeclaredInterests), Audit.ActorOf(User));
+        if (!result.IsOk)
         {
-            ModelState.AddOutcome(outcome);
+            ModelState.AddResult(result);
             await OnGetAsync();
             return Page();
         }

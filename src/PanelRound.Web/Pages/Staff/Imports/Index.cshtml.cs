@@ -36,14 +36,14 @@ public class IndexModel(PastPanelImport import, IOptions<ScoringOptions> options
         var watch = Stopwatch.StartNew();
         await using var f = forecasts.OpenReadStream();
         await using var o = observations is { Length: > 0 } ? observations.OpenReadStream() : null;
-        var outcome = await import.ImportAsync(f, o, Audit.ActorOf(User));
+        var result = await import.ImportAsync(f, o, Audit.ActorOf(User));
         Seconds = watch.Elapsed.TotalSeconds;
-        if (!outcome.IsOk)
+        if (!result.IsOk)
         {
-            Errors = outcome.Errors.Count > 0 ? [.. outcome.Errors] : [new("import", [outcome.Message ?? "Nothing was imported."])];
+            Errors = result.Errors.Count > 0 ? [.. result.Errors] : [new("import", [result.Message ?? "Nothing was imported."])];
             return Page();
         }
-        Result = outcome.Value;
+        Result = result.Value;
         return Page();
     }
 }

@@ -59,17 +59,17 @@ public class DetailsModel(PanelRoundDbContext db, IndicatorCatalog catalog) : Pa
         await using (stream)
         {
             var parsed = ObservationCsv.Parse(stream);
-            var outcome = parsed.IsOk
+            var result = parsed.IsOk
                 ? await catalog.RecordObservationsAsync(Id, parsed.Value!, Audit.ActorOf(User), "row")
                 : parsed.As<ObservationImportResult>();
-            if (outcome.IsOk)
+            if (result.IsOk)
             {
-                var r = outcome.Value!;
+                var r = result.Value!;
                 Notice = $"Saved: {r.Added} added, {r.Corrected} corrected (history kept), {r.Unchanged} unchanged.";
                 return RedirectToPage(new { id = Id });
             }
-            ImportErrors.AddRange(outcome.Errors.SelectMany(e => e.Value.Select(m => e.Key.StartsWith("row[", StringComparison.Ordinal) ? $"{RowLabel(e.Key)}: {m}" : m)));
-            if (outcome.Message is { } msg && outcome.Kind != OutcomeKind.Invalid)
+            ImportErrors.AddRange(result.Errors.SelectMany(e => e.Value.Select(m => e.Key.StartsWith("row[", StringComparison.Ordinal) ? $"{RowLabel(e.Key)}: {m}" : m)));
+            if (result.Message is { } msg && result.Kind != ResultKind.Invalid)
             {
                 ImportErrors.Add(msg);
             }

@@ -47,13 +47,13 @@ public class IndexModel(PanelRoundDbContext db, IndicatorCatalog catalog) : Page
 
     public async Task<IActionResult> OnPostAsync()
     {
-        var outcome = await catalog.CreateIndicatorAsync(new IndicatorInput(Input.Key, Input.Name, Input.UnitLabel, Input.Decimals, Input.Description), Audit.ActorOf(User));
-        if (!outcome.IsOk)
+        var result = await catalog.CreateIndicatorAsync(new IndicatorInput(Input.Key, Input.Name, Input.UnitLabel, Input.Decimals, Input.Description), Audit.ActorOf(User));
+        if (!result.IsOk)
         {
-            ModelState.AddOutcome(outcome);
+            ModelState.AddResult(result);
             await OnGetAsync();
             return Page();
         }
-        return RedirectToPage("Details", new { id = outcome.Value!.Id });
+        return RedirectToPage("Details", new { id = result.Value!.Id });
     }
 }

@@ -17,7 +17,7 @@ public sealed record OutcomeLine(Indicator Indicator, string Period, int Panels,
 
 [Authorize(Policy = AuthSetup.ReviewerPolicy)]
 [WritePolicy(AuthSetup.ReviewerPolicy)]
-public class IndexModel(PanelRoundDbContext db, OutcomeRecorder recorder, ScoringService scoring) : PageModel
+public class IndexModel(PanelRoundDbContext db, OutcomeRecorder recorder, ScoringDataLoader scoring) : PageModel
 {
     public sealed class OutcomeForm
     {
@@ -57,7 +57,7 @@ public class IndexModel(PanelRoundDbContext db, OutcomeRecorder recorder, Scorin
         var result = await recorder.RecordAsync(new OutcomeInput(Input.Indicator, Input.Period, Input.Value, Input.Source, Input.ObservedOn), Audit.ActorOf(User));
         if (!result.IsOk)
         {
-            ModelState.AddOutcome(result);
+            ModelState.AddResult(result);
             await LoadAsync();
             return Page();
         }

@@ -19,12 +19,12 @@ public class CreateModel(PanelSetup setup) : PageModel
 
     public async Task<IActionResult> OnPostAsync()
     {
-        var outcome = await setup.CreatePanelAsync(Input.ToInput(), Audit.ActorOf(User));
-        if (!outcome.IsOk)
+        var result = await setup.CreatePanelAsync(Input.ToInput(), Audit.ActorOf(User));
+        if (!result.IsOk)
         {
-            ModelState.AddOutcome(outcome);
+            ModelState.AddResult(result);
             return Page();
         }
-        return RedirectToPage("Details", new { id = outcome.Value!.Id });
+        return RedirectToPage("Details", new { id = result.Value!.Id });
     }
 }

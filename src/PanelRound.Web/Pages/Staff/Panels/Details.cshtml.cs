@@ -84,33 +84,33 @@ public class DetailsModel(PanelRoundDbContext db, PanelSetup setup, Memberships 
 
     public async Task<IActionResult> OnPostRemindAsync()
     {
-        var outcome = await memberships.SendRemindersAsync(Id, Audit.ActorOf(User));
-        return await Done(outcome, outcome.Value is { Failed: > 0 } r
+        var result = await memberships.SendRemindersAsync(Id, Audit.ActorOf(User));
+        return await Done(result, result.Value is { Failed: > 0 } r
             ? $"Reminders sent: {r.Sent}; {r.Failed} could not be sent (recorded in the audit log as mail.failed)."
-            : $"Reminders sent: {outcome.Value?.Sent}.");
+            : $"Reminders sent: {result.Value?.Sent}.");
     }
 
     public async Task<IActionResult> OnPostConcludeAsync() =>
         await Done(await conclusion.ConcludeAsync(Id, Audit.ActorOf(User)), "Panel concluded; the consensus is published.");
 
-    private async Task<IActionResult> LinkResult(Outcome<IssuedLink> outcome)
+    private async Task<IActionResult> LinkResult(Result<IssuedLink> result)
     {
-        if (outcome.IsOk)
+        if (result.IsOk)
         {
-            IssuedLink = $"{outcome.Value!.PanelCode}|{ApiResults.BaseUrl(Request)}{outcome.Value.Path}";
+            IssuedLink = $"{result.Value!.PanelCode}|{ApiResults.BaseUrl(Request)}{result.Value.Path}";
             return RedirectToPage(new { id = Id });
         }
-        return await Done(outcome, "");
+        return await Done(result, "");
     }
 
-    private async Task<IActionResult> Done<T>(Outcome<T> outcome, string notice)
+    private async Task<IActionResult> Done<T>(Result<T> result, string notice)
     {
-        if (outcome.IsOk)
+        if (result.IsOk)
         {
             Notice = notice;
             return RedirectToPage(new { id = Id });
         }
-        ModelState.AddOutcome(outcome, "");
+        ModelState.AddResult(result, "");
         return await OnGetAsync();
     }
 }

@@ -35,10 +35,10 @@ public class EditModel(PanelRoundDbContext db, PanelSetup setup) : PageModel
 
     public async Task<IActionResult> OnPostAsync()
     {
-        var outcome = await setup.UpdatePanelAsync(Id, Input.ToInput(), Audit.ActorOf(User));
-        if (!outcome.IsOk)
+        var result = await setup.UpdatePanelAsync(Id, Input.ToInput(), Audit.ActorOf(User));
+        if (!result.IsOk)
         {
-            ModelState.AddOutcome(outcome);
+            ModelState.AddResult(result);
             return Page();
         }
         return RedirectToPage("Details", new { id = Id });

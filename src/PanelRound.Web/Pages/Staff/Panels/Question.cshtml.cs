@@ -70,12 +70,12 @@ public class QuestionModel(PanelRoundDbContext db, PanelSetup setup) : PageModel
     {
         var input = new QuestionInput(Input.IndicatorId, Input.Label, Input.HelpText, Input.Format.ToString(), Input.HardMin, Input.HardMax,
             Input.PlausibleMin, Input.PlausibleMax, Input.TargetPeriods);
-        var outcome = QuestionId is { } id
+        var result = QuestionId is { } id
             ? await setup.UpdateQuestionAsync(PanelId, id, input, Audit.ActorOf(User))
             : await setup.AddQuestionAsync(PanelId, input, Audit.ActorOf(User));
-        if (!outcome.IsOk)
+        if (!result.IsOk)
         {
-            ModelState.AddOutcome(outcome);
+            ModelState.AddResult(result);
             await LoadAsync();
             return Page();
         }

@@ -1,35 +1,5 @@
 namespace PanelRound.Web.Infrastructure;
 
-/// <summary>What an application operation produced: a value, field-level errors, or a refusal.</summary>
-public enum OutcomeKind
-{
-    Ok,
-    Invalid,
-    NotFound,
-    Conflict,
-}
-
-/// <summary>
-/// The result of an application operation, shared by the API (which maps it to ProblemDetails)
-/// and the pages (which put the errors beside the fields). Expected failures are values here.
-/// </summary>
-public sealed record Outcome<T>(OutcomeKind Kind, T? Value, IReadOnlyDictionary<string, string[]> Errors, string? Message)
-{
-    public bool IsOk => Kind == OutcomeKind.Ok;
-
-    public static Outcome<T> Ok(T value) => new(OutcomeKind.Ok, value, Empty, null);
-
-    public static Outcome<T> Invalid(FieldErrors errors) => new(OutcomeKind.Invalid, default, errors.ToDictionary(), "The input has errors.");
-
-    public static Outcome<T> NotFound(string message) => new(OutcomeKind.NotFound, default, Empty, message);
-
-    public static Outcome<T> Conflict(string message) => new(OutcomeKind.Conflict, default, Empty, message);
-
-    public Outcome<TOther> As<TOther>() => new(Kind, default, Errors, Message);
-
-    private static readonly IReadOnlyDictionary<string, string[]> Empty = new Dictionary<string, string[]>();
-}
-
 /// <summary>Field-level validation errors, keyed by the input's field path (e.g. <c>answers[0].periods[2].value</c>).</summary>
 public sealed class FieldErrors
 {
