@@ -14,7 +14,7 @@ namespace PanelRound.Data;
 /// Add a migration to both providers after a model change (the web project is the start-up project):
 /// <code>
 /// dotnet ef migrations add NAME --project migrations/PanelRound.Migrations.Sqlite --startup-project src/PanelRound.Web -- --Database:Provider Sqlite
-/// dotnet ef migrations add NAME --project migrations/PanelRound.Migrations.Postgres --startup-project src/PanelRound.Web -- --Database:Provider Postgres
+/// dotnet ef migrations add NAME --project migrations/PanelRound.Migrations.Postgres --startup-project src/PanelRound.Web -- --Database:Provider Postgres --ConnectionStrings:Postgres "Host=localhost;Database=design-time"
 /// </code>
 /// </remarks>
 public class PanelRoundDbContext(DbContextOptions<PanelRoundDbContext> options)
