@@ -36,7 +36,7 @@ await app.PrepareDatabaseAsync();
 app.UsePanelRoundPipeline();
 app.MapPanelRoundHealth();
 
-// The JSON API, one class per feature (Features/<Feature>/<Feature>Api.cs).
+// The JSON API: one class per feature, beside its use cases (Features/<Feature>/...Api.cs).
 app.MapAccountApi();
 app.MapIndicatorsApi();
 app.MapRosterApi();
@@ -49,7 +49,7 @@ app.MapScorecardApi();
 app.MapImportsApi();
 app.MapAuditApi();
 
-// The pages (Pages/<Area>/<Page>.cshtml), their logic in the same features.
+// The pages (Pages/<Area>/<Page>.cshtml); their page models call the same use cases in Features/.
 app.MapRazorPages();
 
 await app.RunAsync();
