@@ -37,7 +37,7 @@ await app.PrepareDatabaseAsync();
 app.UsePanelRoundPipeline();
 app.MapPanelRoundHealth();
 
-// The JSON API, one class per feature (Features/<Feature>/<Feature>Api.cs).
+// The JSON API: one class per feature, beside its use cases (Features/<Feature>/...Api.cs).
 app.MapAccountApi();
 app.MapIndicatorsApi();
 app.MapRosterApi();
@@ -51,7 +51,7 @@ app.MapImportsApi();
 app.MapAuditApi();
 app.MapReportsApi();
 
-// The pages (Pages/<Area>/<Page>.cshtml), their logic in the same features.
+// The pages (Pages/<Area>/<Page>.cshtml); their page models call the same use cases in Features/.
 app.MapRazorPages();
 
 await app.RunAsync();

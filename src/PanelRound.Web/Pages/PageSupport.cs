@@ -1,5 +1,7 @@
 using System.Globalization;
+using Microsoft.AspNetCore.Mvc;
 using Microsoft.AspNetCore.Mvc.ModelBinding;
+using Microsoft.AspNetCore.Mvc.RazorPages;
 using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Pages;
@@ -22,6 +24,37 @@ public static class PageSupport
         {
             state.AddModelError(string.Empty, result.Message ?? "The operation was refused.");
         }
+    }
+
+    /// <summary>
+    /// What a page answers to an operation's result: <paramref name="onOk"/> when it succeeded; else the
+    /// page again, its fields' errors beside them (<see cref="AddResult"/>) after <paramref name="reload"/>
+    /// has loaded what the page shows.
+    /// </summary>
+    public static async Task<IActionResult> AnswerAsync<T>(this PageModel page, Result<T> result, Func<T, IActionResult> onOk, Func<Task>? reload = null)
+    {
+        if (result.IsOk)
+        {
+            return onOk(result.Value!);
+        }
+        page.ModelState.AddResult(result);
+        if (reload is not null)
+        {
+            await reload();
+        }
+        return page.Page();
+    }
+
+    /// <summary>The page with the view it shows (<paramref name="show"/> keeps it), or 404 when there is none.</summary>
+    public static IActionResult PageOrNotFound<T>(this PageModel page, T? view, Action<T> show)
+        where T : class
+    {
+        if (view is null)
+        {
+            return page.NotFound();
+        }
+        show(view);
+        return page.Page();
     }
 
     /// <summary>A number for display with the indicator's decimals, in the invariant culture.</summary>

@@ -35,15 +35,8 @@ public class IndexModel(PanelRoundDbContext db, ExpertRoster roster) : PageModel
     public async Task OnGetAsync() =>
         Experts = await db.Experts.AsNoTracking().Include(e => e.Memberships).ThenInclude(m => m.Panel).OrderBy(e => e.Name).ToListAsync();
 
-    public async Task<IActionResult> OnPostAsync()
-    {
-        var result = await roster.CreateExpertAsync(new ExpertInput(Input.Name, Input.Email, Input.Affiliation, Input.Expertise, Input.DeclaredInterests), Audit.ActorOf(User));
-        if (!result.IsOk)
-        {
-            ModelState.AddResult(result);
-            await OnGetAsync();
-            return Page();
-        }
-        return RedirectToPage();
-    }
+    public async Task<IActionResult> OnPostAsync() =>
+        await this.AnswerAsync(
+            await roster.CreateExpertAsync(new ExpertInput(Input.Name, Input.Email, Input.Affiliation, Input.Expertise, Input.DeclaredInterests), Audit.ActorOf(User)),
+            _ => RedirectToPage(), OnGetAsync);
 }

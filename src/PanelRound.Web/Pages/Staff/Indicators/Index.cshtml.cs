@@ -45,15 +45,8 @@ public class IndexModel(PanelRoundDbContext db, IndicatorCatalog catalog) : Page
 
     private static string Label(int sortKey) => sortKey % 10 == 5 ? (sortKey / 10).ToString(System.Globalization.CultureInfo.InvariantCulture) : $"{sortKey / 10}Q{sortKey % 10}";
 
-    public async Task<IActionResult> OnPostAsync()
-    {
-        var result = await catalog.CreateIndicatorAsync(new IndicatorInput(Input.Key, Input.Name, Input.UnitLabel, Input.Decimals, Input.Description), Audit.ActorOf(User));
-        if (!result.IsOk)
-        {
-            ModelState.AddResult(result);
-            await OnGetAsync();
-            return Page();
-        }
-        return RedirectToPage("Details", new { id = result.Value!.Id });
-    }
+    public async Task<IActionResult> OnPostAsync() =>
+        await this.AnswerAsync(
+            await catalog.CreateIndicatorAsync(new IndicatorInput(Input.Key, Input.Name, Input.UnitLabel, Input.Decimals, Input.Description), Audit.ActorOf(User)),
+            i => RedirectToPage("Details", new { id = i.Id }), OnGetAsync);
 }

@@ -52,18 +52,15 @@ public class IndexModel(PanelRoundDbContext db, OutcomeRecorder recorder, Scorin
 
     public async Task OnGetAsync() => await LoadAsync();
 
-    public async Task<IActionResult> OnPostRecordAsync()
-    {
-        var result = await recorder.RecordAsync(new OutcomeInput(Input.Indicator, Input.Period, Input.Value, Input.Source, Input.ObservedOn), Audit.ActorOf(User));
-        if (!result.IsOk)
-        {
-            ModelState.AddResult(result);
-            await LoadAsync();
-            return Page();
-        }
-        Message = Describe(result.Value!);
-        return RedirectToPage();
-    }
+    public async Task<IActionResult> OnPostRecordAsync() =>
+        await this.AnswerAsync(
+            await recorder.RecordAsync(new OutcomeInput(Input.Indicator, Input.Period, Input.Value, Input.Source, Input.ObservedOn), Audit.ActorOf(User)),
+            r =>
+            {
+                Message = Describe(r);
+                return RedirectToPage();
+            },
+            LoadAsync);
 
     public async Task<IActionResult> OnPostImportAsync(IFormFile? file)
     {

@@ -17,14 +17,6 @@ public class CreateModel(PanelSetup setup) : PageModel
     {
     }
 
-    public async Task<IActionResult> OnPostAsync()
-    {
-        var result = await setup.CreatePanelAsync(Input.ToInput(), Audit.ActorOf(User));
-        if (!result.IsOk)
-        {
-            ModelState.AddResult(result);
-            return Page();
-        }
-        return RedirectToPage("Details", new { id = result.Value!.Id });
-    }
+    public async Task<IActionResult> OnPostAsync() =>
+        await this.AnswerAsync(await setup.CreatePanelAsync(Input.ToInput(), Audit.ActorOf(User)), p => RedirectToPage("Details", new { id = p.Id }));
 }

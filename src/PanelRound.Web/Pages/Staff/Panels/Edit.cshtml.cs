@@ -33,14 +33,6 @@ public class EditModel(PanelRoundDbContext db, PanelSetup setup) : PageModel
         return Page();
     }
 
-    public async Task<IActionResult> OnPostAsync()
-    {
-        var result = await setup.UpdatePanelAsync(Id, Input.ToInput(), Audit.ActorOf(User));
-        if (!result.IsOk)
-        {
-            ModelState.AddResult(result);
-            return Page();
-        }
-        return RedirectToPage("Details", new { id = Id });
-    }
+    public async Task<IActionResult> OnPostAsync() =>
+        await this.AnswerAsync(await setup.UpdatePanelAsync(Id, Input.ToInput(), Audit.ActorOf(User)), _ => RedirectToPage("Details", new { id = Id }));
 }

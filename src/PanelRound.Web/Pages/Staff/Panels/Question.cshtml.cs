@@ -73,13 +73,7 @@ public class QuestionModel(PanelRoundDbContext db, PanelSetup setup) : PageModel
         var result = QuestionId is { } id
             ? await setup.UpdateQuestionAsync(PanelId, id, input, Audit.ActorOf(User))
             : await setup.AddQuestionAsync(PanelId, input, Audit.ActorOf(User));
-        if (!result.IsOk)
-        {
-            ModelState.AddResult(result);
-            await LoadAsync();
-            return Page();
-        }
-        return RedirectToPage("Details", new { id = PanelId });
+        return await this.AnswerAsync(result, _ => RedirectToPage("Details", new { id = PanelId }), LoadAsync);
     }
 
     private async Task LoadAsync()

@@ -11,14 +11,5 @@ public class ExpertModel(ScorecardService scorecard) : PageModel
 {
     public ExpertScorecardView View { get; private set; } = null!;
 
-    public async Task<IActionResult> OnGetAsync(int id)
-    {
-        var view = await scorecard.ExpertAsync(id);
-        if (view is null)
-        {
-            return NotFound();
-        }
-        View = view;
-        return Page();
-    }
+    public async Task<IActionResult> OnGetAsync(int id) => this.PageOrNotFound(await scorecard.ExpertAsync(id), v => View = v);
 }

@@ -11,14 +11,5 @@ public class PanelModel(ScorecardService scorecard) : PageModel
 {
     public PanelScorecardView View { get; private set; } = null!;
 
-    public async Task<IActionResult> OnGetAsync(int id)
-    {
-        var view = await scorecard.PanelAsync(id);
-        if (view is null)
-        {
-            return NotFound();
-        }
-        View = view;
-        return Page();
-    }
+    public async Task<IActionResult> OnGetAsync(int id) => this.PageOrNotFound(await scorecard.PanelAsync(id), v => View = v);
 }
