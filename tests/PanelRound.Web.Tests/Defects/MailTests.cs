@@ -27,13 +27,6 @@ public abstract class MailTests(IDatabaseFixture fixture) : ProviderTests(fixtur
         "john@example..com",
     };
 
-    private static Task<string> OutboxAsync()
-    {
-        var folder = Path.Combine(Path.GetTempPath(), "panelround-mail-tests", Guid.NewGuid().ToString("N"));
-        Directory.CreateDirectory(folder);
-        return Task.FromResult(folder);
-    }
-
     /// <summary>An expert as legacy data would hold it: written to the database without the roster's validation.</summary>
     private static Task<int> InsertLegacyExpertAsync(TestApp app, string name, string email) =>
         app.WithDbAsync(async db =>
@@ -66,8 +59,8 @@ public abstract class MailTests(IDatabaseFixture fixture) : ProviderTests(fixtur
     [SkippableFact]
     public async Task AddMember_LegacyAddressTheMailerCannotParse_ReturnsTheLink_AndAuditsTheFailure()
     {
-        var outbox = await OutboxAsync();
-        var app = await StartAsync(new Dictionary<string, string?> { ["Mail:OutboxFolder"] = outbox });
+        var app = await StartAsync();
+        var outbox = app.OutboxFolder;
         var staff = await app.StaffClientAsync();
         var panelId = (int)(await staff.PostOk("/api/panels", new { title = "Harbour outlook", startsOn = "2026-11-02", targetPeriods = "2027" }))["id"]!;
         var expertId = await InsertLegacyExpertAsync(app, "Jo Dunmore", "john..doe@example.com");
@@ -97,8 +90,8 @@ public abstract class MailTests(IDatabaseFixture fixture) : ProviderTests(fixtur
     [SkippableFact]
     public async Task Reminders_OneUnparseableAddress_The200SendsTheOthers_AndAuditsEverySend()
     {
-        var outbox = await OutboxAsync();
-        var app = await StartAsync(new Dictionary<string, string?> { ["Mail:OutboxFolder"] = outbox });
+        var app = await StartAsync();
+        var outbox = app.OutboxFolder;
         var staff = await app.StaffClientAsync();
         var indicatorId = (int)(await staff.PostOk("/api/indicators", new { key = "price-harbour", name = "Apartment price, harbour", unitLabel = "CU/m²", decimals = 0 }))["id"]!;
         var panelId = (int)(await staff.PostOk("/api/panels", new { title = "Harbour outlook", startsOn = "2026-11-02", targetPeriods = "2027" }))["id"]!;

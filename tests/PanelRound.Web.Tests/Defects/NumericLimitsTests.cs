@@ -79,9 +79,9 @@ public abstract class NumericLimitsTests(IDatabaseFixture fixture) : ProviderTes
             {
                 db.Estimates.Add(new Estimate { RoundId = round.Id, MembershipId = culprit.MembershipId, QuestionId = p.PointQuestion, Period = period, Value = 1.7e308, CreatedAt = DateTime.UtcNow });
             }
-            round.ClosesAt = DateTime.UtcNow.AddMinutes(-1);
             await db.SaveChangesAsync();
         });
+        app.Clock!.Advance(TimeSpan.FromDays(8));
 
         var manual = await p.Staff.PostAsync($"/api/panels/{p.PanelId}/rounds/1/close", JsonContent());
         Assert.Equal(HttpStatusCode.Conflict, manual.StatusCode);

@@ -2,13 +2,50 @@ using System.Net;
 using System.Net.Http.Json;
 using System.Text.Json;
 using System.Text.Json.Nodes;
+using System.Text.Json.Serialization;
 
 namespace PanelRound.Web.Tests.Infrastructure;
 
 /// <summary>Small helpers for calling the JSON API in tests.</summary>
 public static class Api
 {
-    public static readonly JsonSerializerOptions Json = new(JsonSerializerDefaults.Web);
+    /// <summary>The API's JSON conventions: camelCase names, enums as their names.</summary>
+    public static readonly JsonSerializerOptions Json = new(JsonSerializerDefaults.Web) { Converters = { new JsonStringEnumConverter() } };
+
+    /// <summary>GET that must answer 200, read as the API's own response type.</summary>
+    public static async Task<T> GetAs<T>(this HttpClient client, string url) => Read<T>(await client.GetTextOk(url), url);
+
+    /// <summary>POST that must answer the expected status, read as the API's own response type.</summary>
+    public static async Task<T> PostAs<T>(this HttpClient client, string url, object body, HttpStatusCode expected = HttpStatusCode.Created)
+    {
+        var r = await client.PostAsJsonAsync(url, body, Json);
+        var text = await r.Content.ReadAsStringAsync();
+        Assert.True(r.StatusCode == expected, $"POST {url}: {(int)r.StatusCode} {text}");
+        return Read<T>(text, url);
+    }
+
+    /// <summary>GET that must answer 200; the body as text (for assertions about what a response does not contain).</summary>
+    public static async Task<string> GetTextOk(this HttpClient client, string url)
+    {
+        var r = await client.GetAsync(url);
+        var text = await r.Content.ReadAsStringAsync();
+        Assert.True(r.StatusCode == HttpStatusCode.OK, $"GET {url}: {(int)r.StatusCode} {text}");
+        return text;
+    }
+
+    /// <summary>A response body as the API's type; a body that does not fit fails the test with the body shown.</summary>
+    public static T Read<T>(string json, string url = "")
+    {
+        try
+        {
+            return JsonSerializer.Deserialize<T>(json, Json) ?? throw new JsonException("null");
+        }
+        catch (JsonException e)
+        {
+            Assert.Fail($"{url}: not a {typeof(T).Name}: {e.Message}\n{json}");
+            throw;
+        }
+    }
 
     public static async Task<JsonNode> PostOk(this HttpClient client, string url, object body, HttpStatusCode expected = HttpStatusCode.Created)
     {

@@ -17,9 +17,10 @@ public sealed class TestApp : WebApplicationFactory<Program>
     private readonly Action<IServiceCollection>? _testServices;
 
     /// <summary>The app on a database, with extra settings and, optionally, services that replace the app's own (e.g. a mailer that fails).</summary>
-    public TestApp(DatabaseProvider provider, string connectionString, IDictionary<string, string?>? extra = null, Action<IServiceCollection>? testServices = null)
+    public TestApp(DatabaseProvider provider, string connectionString, IDictionary<string, string?>? extra = null, Action<IServiceCollection>? testServices = null, TestClock? clock = null)
     {
         _testServices = testServices;
+        Clock = clock;
         Provider = provider;
         ConnectionString = connectionString;
         _settings = new Dictionary<string, string?>
@@ -45,6 +46,12 @@ public sealed class TestApp : WebApplicationFactory<Program>
 
     public string ConnectionString { get; }
 
+    /// <summary>The app's clock when the test controls time (the shared host), otherwise null (the system clock).</summary>
+    public TestClock? Clock { get; }
+
+    /// <summary>The folder the app writes its mail to (the Mail:OutboxFolder setting).</summary>
+    public string OutboxFolder => _settings["Mail:OutboxFolder"]!;
+
     protected override void ConfigureWebHost(IWebHostBuilder builder)
     {
         // "Test:Environment" runs the app as Development or Production where a test is about the environment.
@@ -52,6 +59,10 @@ public sealed class TestApp : WebApplicationFactory<Program>
         foreach (var (k, v) in _settings)
         {
             builder.UseSetting(k, v);
+        }
+        if (Clock is not null)
+        {
+            builder.ConfigureTestServices(services => services.AddSingleton<TimeProvider>(Clock));
         }
         if (_testServices is not null)
         {
@@ -95,61 +106,3 @@ public sealed class TestApp : WebApplicationFactory<Program>
         });
 }
 
-/// <summary>One database per provider, a new database for each test.</summary>
-public interface IDatabaseFixture
-{
-    DatabaseProvider Provider { get; }
-
-    /// <summary>A connection string to a new, empty database (skips the test when the provider is unavailable outside CI).</summary>
-    Task<string> NewDatabaseAsync();
-}
-
-public sealed class SqliteFixture : IDatabaseFixture, IDisposable
-{
-    private readonly string _folder = Path.Combine(Path.GetTempPath(), "panelround-tests-" + Guid.NewGuid().ToString("N")[..12]);
-
-    public DatabaseProvider Provider => DatabaseProvider.Sqlite;
-
-    public Task<string> NewDatabaseAsync()
-    {
-        Directory.CreateDirectory(_folder);
-        return Task.FromResult($"Data Source={Path.Combine(_folder, Guid.NewGuid().ToString("N") + ".db")}");
-    }
-
-    public void Dispose()
-    {
-        Microsoft.Data.Sqlite.SqliteConnection.ClearAllPools();
-        try
-        {
-            Directory.Delete(_folder, recursive: true);
-        }
-        catch (IOException)
-        {
-            // A file still open by a finaliser: the temp folder is cleaned by the system later.
-        }
-    }
-}
-
-public sealed class PostgresFixture : IDatabaseFixture
-{
-    public DatabaseProvider Provider => DatabaseProvider.Postgres;
-
-    public async Task<string> NewDatabaseAsync()
-    {
-        var reason = PostgresServer.UnavailableReason();
-        Skip.If(reason is not null && !PostgresServer.IsCi, reason);
-        return await PostgresServer.CreateDatabaseAsync("prt");
-    }
-}
-
-[CollectionDefinition(Name)]
-public sealed class SqliteCollection : ICollectionFixture<SqliteFixture>
-{
-    public const string Name = "sqlite";
-}
-
-[CollectionDefinition(Name)]
-public sealed class PostgresCollection : ICollectionFixture<PostgresFixture>
-{
-    public const string Name = "postgres";
-}

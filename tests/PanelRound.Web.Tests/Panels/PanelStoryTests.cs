@@ -3,6 +3,9 @@ using System.Text.Json.Nodes;
 using Microsoft.EntityFrameworkCore;
 using Microsoft.Extensions.DependencyInjection;
 using PanelRound.Core.Statistics;
+using PanelRound.Web.Features.Answers;
+using PanelRound.Web.Features.Results;
+using PanelRound.Web.Features.Rounds;
 using PanelRound.Web.Tests.Infrastructure;
 
 namespace PanelRound.Web.Tests.Panels;
@@ -101,38 +104,36 @@ public abstract class PanelStoryTests(IDatabaseFixture fixture) : ProviderTests(
 
         // Round 2 opens; the expert sees round 1's frozen feedback, equal to the core's on the same answers.
         await staff.PostOk($"/api/panels/{panelId}/rounds", new { closesAt = DateTime.UtcNow.AddDays(7) });
-        var form = await expertClient.WithExpertToken(members[3].Token).GetOk($"/api/expert/panels/{panelId}");
-        Assert.Equal(1, (int)form["feedbackRound"]!);
+        var formJson = await expertClient.WithExpertToken(members[3].Token).GetTextOk($"/api/expert/panels/{panelId}");
+        var form = Api.Read<ExpertForm>(formJson);
+        Assert.Equal(1, form.FeedbackRound);
         var settings = new FeedbackSettings { Rule = OutlierRule.TukeyFences, TrimFraction = 0.1, MinimumGroupSize = 3 };
-        var questions = form["questions"]!.AsArray();
+        var questions = form.Questions;
         for (var j = 0; j < Years.Length; j++)
         {
             var expected = RoundFeedback.ForPoint(Enumerable.Range(0, 8).Select(e => PriceAnswer(e, j, 1)).ToList(), settings).GetFeedbackOrThrow();
-            var shown = questions[0]!["periods"]![j]!["feedback"]!["stats"]!;
-            var spread = shown["spread"]!;
-            Assert.Equal(expected.Median, (double)shown["median"]!, 9);
-            Assert.Equal(expected.Q1, (double)spread["q1"]!, 9);
-            Assert.Equal(expected.Q3, (double)spread["q3"]!, 9);
-            // Experts see no mean, no trimmed median and no extreme (the anonymity defect).
-            Assert.Null(spread["trimmedMedian"]);
-            Assert.Null(spread["trimmedMean"]);
-            Assert.Null(spread["retainedMax"]);
-            var counts = spread["histogram"]!["counts"]!.AsArray().Select(c => (int)c!).ToList();
-            Assert.Equal(8, counts.Sum());
-            Assert.All(counts, c => Assert.True(c == 0 || c >= 3));
+            var shown = questions[0].Periods[j].Feedback!.Stats!;
+            var spread = shown.Spread!;
+            Assert.Equal(expected.Median, shown.Median, 9);
+            Assert.Equal(expected.Q1, spread.Q1, 9);
+            Assert.Equal(expected.Q3, spread.Q3, 9);
+            Assert.Equal(8, spread.Histogram.Counts.Sum());
+            Assert.All(spread.Histogram.Counts, c => Assert.True(c == 0 || c >= 3));
 
             var ranges = Enumerable.Range(0, 8).Select(e => RentAnswer(e, j, 1)).Select(r => new RangeAnswer(r.P10, r.P50, r.P90)).ToList();
             var expectedRange = RoundFeedback.ForRange(ranges, settings).GetFeedbackOrThrow();
-            var shownRange = questions[1]!["periods"]![j]!["feedback"]!["stats"]!;
-            Assert.Equal(Quantiles.Median(ranges.Select(r => r.P10).ToList()), (double)shownRange["spread"]!["bandP10"]!, 9);
-            Assert.Equal(Quantiles.Median(ranges.Select(r => r.P90).ToList()), (double)shownRange["spread"]!["bandP90"]!, 9);
-            Assert.Equal(expectedRange.P50.Median, (double)shownRange["median"]!, 9);
+            var shownRange = questions[1].Periods[j].Feedback!.Stats!;
+            Assert.Equal(Quantiles.Median(ranges.Select(r => r.P10).ToList()), shownRange.Spread!.BandP10!.Value, 9);
+            Assert.Equal(Quantiles.Median(ranges.Select(r => r.P90).ToList()), shownRange.Spread!.BandP90!.Value, 9);
+            Assert.Equal(expectedRange.P50.Median, shownRange.Median, 9);
         }
+        // Experts see no mean, no trimmed median and no extreme (the anonymity defect): no such field anywhere in the response.
+        Assert.DoesNotContain("\"trimmedMedian\"", formJson, StringComparison.Ordinal);
+        Assert.DoesNotContain("\"trimmedMean\"", formJson, StringComparison.Ordinal);
+        Assert.DoesNotContain("\"retainedMax\"", formJson, StringComparison.Ordinal);
         // The expert's own previous answer is shown; the group's rationales are unattributed text only.
-        Assert.Equal(PriceAnswer(3, 0, 1), (double)questions[0]!["periods"]![0]!["previous"]!["value"]!);
-        var rationales = questions[0]!["rationales"]!.AsArray().Select(r => (string)r!).ToList();
-        Assert.Equal(8, rationales.Count);
-        var formJson = form.ToJsonString();
+        Assert.Equal(PriceAnswer(3, 0, 1), questions[0].Periods[0].Previous!.Value);
+        Assert.Equal(8, questions[0].Rationales.Count);
         foreach (var other in members.Where((_, i) => i != 3))
         {
             Assert.DoesNotContain(other.Code, formJson, StringComparison.Ordinal);
@@ -146,7 +147,7 @@ public abstract class PanelStoryTests(IDatabaseFixture fixture) : ProviderTests(
         Assert.DoesNotContain("\"min\"", formJson, StringComparison.Ordinal);
         Assert.DoesNotContain("\"max\"", formJson, StringComparison.Ordinal);
         Assert.DoesNotContain(PriceAnswer(7, 0, 1).ToString(System.Globalization.CultureInfo.InvariantCulture), formJson, StringComparison.Ordinal);
-        Assert.True((int)questions[0]!["periods"]![0]!["feedback"]!["stats"]!["spread"]!["histogram"]!["counts"]!.AsArray()[^1]! >= 2);
+        Assert.True(questions[0].Periods[0].Feedback!.Stats!.Spread!.Histogram.Counts[^1] >= 2);
 
         // Round 2: six experts revise, two hold by not answering again; expert 1 revises twice.
         for (var i = 0; i < 6; i++)
@@ -159,34 +160,34 @@ public abstract class PanelStoryTests(IDatabaseFixture fixture) : ProviderTests(
             }
         }
         await staff.PostOk($"/api/panels/{panelId}/rounds/2/close", new { }, HttpStatusCode.OK);
-        var frozen2 = (await staff.GetOk($"/api/panels/{panelId}/rounds/2/feedback")).AsArray();
-        var price2027 = frozen2.Single(f => (int)f!["questionId"]! == q[0] && (string)f["period"]! == "2027")!;
-        Assert.Equal(6, (int)price2027["n"]!);
+        var frozen2 = await staff.GetAs<List<FeedbackView>>($"/api/panels/{panelId}/rounds/2/feedback");
+        var price2027 = frozen2.Single(f => f.QuestionId == q[0] && f.Period == "2027");
+        Assert.Equal(6, price2027.N);
         var expected2 = RoundFeedback.ForPoint(Enumerable.Range(0, 6).Select(e => PriceAnswer(e, 0, 2)).ToList(), settings).GetFeedbackOrThrow();
-        Assert.Equal(expected2.Median, (double)price2027["point"]!["median"]!, 9);
+        Assert.Equal(expected2.Median, price2027.Point!.Median, 9);
 
         // Results: convergence and stability between rounds, over the experts who answered both.
-        var results = await staff.GetOk($"/api/panels/{panelId}/results");
-        var r2 = results["questions"]![0]!["periods"]![0]!["rounds"]![1]!;
-        Assert.Equal(6, (int)r2["stability"]!["pairedCount"]!);
+        var results = await staff.GetAs<PanelResultsView>($"/api/panels/{panelId}/results");
+        var r2 = results.Questions[0].Periods[0].Rounds[1];
+        Assert.Equal(6, r2.Stability!.PairedCount);
         var pairs = Enumerable.Range(0, 6).Select(e => new PairedAnswer(PriceAnswer(e, 0, 1), PriceAnswer(e, 0, 2))).ToList();
-        Assert.Equal(Stability.Assess(pairs, 0.15).Wilcoxon!.PValue, (double)r2["stability"]!["wilcoxon"]!["pValue"]!, 9);
-        var r1 = results["questions"]![0]!["periods"]![0]!["rounds"]![0]!;
-        Assert.Equal([members[7].Code], r1["outlierCodes"]!.AsArray().Select(c => (string)c!));
+        Assert.Equal(Stability.Assess(pairs, 0.15).Wilcoxon!.PValue, r2.Stability.Wilcoxon!.PValue, 9);
+        var r1 = results.Questions[0].Periods[0].Rounds[0];
+        Assert.Equal([members[7].Code], r1.OutlierCodes);
 
         // Conclude: the consensus is the core's on round 2's answers; the panel is read-only.
-        var consensus = (await staff.PostOk($"/api/panels/{panelId}/conclude", new { }, HttpStatusCode.OK)).AsArray();
+        var consensus = await staff.PostAs<List<ConsensusEntryDto>>($"/api/panels/{panelId}/conclude", new { }, HttpStatusCode.OK);
         Assert.Equal(15, consensus.Count);
-        var c2027 = consensus.Single(c => (int)c!["questionId"]! == q[0] && (string)c["period"]! == "2027")!;
+        var c2027 = consensus.Single(c => c.QuestionId == q[0] && c.Period == "2027");
         var expectedConsensus = Consensus.ForPoint(Enumerable.Range(0, 6).Select(e => PriceAnswer(e, 0, 2)).ToList(), settings);
-        Assert.Equal(expectedConsensus.Value, (double)c2027["value"]!, 9);
-        Assert.Equal(expectedConsensus.Low, (double)c2027["low"]!, 9);
-        Assert.Equal(expectedConsensus.High, (double)c2027["high"]!, 9);
-        var rent2031 = consensus.Single(c => (int)c!["questionId"]! == q[1] && (string)c["period"]! == "2031")!;
+        Assert.Equal(expectedConsensus.Value, c2027.Value, 9);
+        Assert.Equal(expectedConsensus.Low, c2027.Low, 9);
+        Assert.Equal(expectedConsensus.High, c2027.High, 9);
+        var rent2031 = consensus.Single(c => c.QuestionId == q[1] && c.Period == "2031");
         var expectedRent = Consensus.ForRange(Enumerable.Range(0, 6).Select(e => RentAnswer(e, 4, 2)).Select(r => new RangeAnswer(r.P10, r.P50, r.P90)).ToList(), settings);
-        Assert.Equal(expectedRent.Value, (double)rent2031["value"]!, 9);
-        Assert.Equal(expectedRent.Low, (double)rent2031["low"]!, 9);
-        Assert.Equal(expectedRent.High, (double)rent2031["high"]!, 9);
+        Assert.Equal(expectedRent.Value, rent2031.Value, 9);
+        Assert.Equal(expectedRent.Low, rent2031.Low, 9);
+        Assert.Equal(expectedRent.High, rent2031.High, 9);
         var (afterStatus, _) = await staff.Post($"/api/panels/{panelId}/rounds", new { closesAt = DateTime.UtcNow.AddDays(7) });
         Assert.Equal(HttpStatusCode.Conflict, afterStatus);
 
@@ -292,7 +293,7 @@ public abstract class PanelStoryTests(IDatabaseFixture fixture) : ProviderTests(
     [SkippableFact]
     public async Task Api_ErrorsAreProblemDetails_AuditIsForAdministrators_OpenApiIsPublished()
     {
-        var app = await StartAsync(new Dictionary<string, string?> { ["Mail:OutboxFolder"] = Path.Combine(Path.GetTempPath(), "panelround-outbox-" + Guid.NewGuid().ToString("N")) });
+        var app = await StartAsync();
         var staff = await app.StaffClientAsync();
         var (status, body) = await staff.Post("/api/panels", new { brief = "x", targetPeriods = "2031-2027" });
         Assert.Equal(HttpStatusCode.BadRequest, status);
@@ -319,8 +320,8 @@ public abstract class PanelStoryTests(IDatabaseFixture fixture) : ProviderTests(
     [SkippableFact]
     public async Task AddMember_WithoutSmtp_InvitationWithTheLinkGoesToTheOutbox()
     {
-        var outbox = Path.Combine(Path.GetTempPath(), "panelround-outbox-" + Guid.NewGuid().ToString("N"));
-        var app = await StartAsync(new Dictionary<string, string?> { ["Mail:OutboxFolder"] = outbox });
+        var app = await StartAsync();
+        var outbox = app.OutboxFolder;
         var staff = await app.StaffClientAsync();
         var panel = await staff.PostOk("/api/panels", new { title = "Mail test", startsOn = "2026-11-02", targetPeriods = "2027" });
         var expert = await staff.PostOk("/api/experts", new { name = "Mara Quill", email = "mara@panel.example" });
@@ -395,10 +396,10 @@ public abstract class PanelStoryTests(IDatabaseFixture fixture) : ProviderTests(
             await s.App.Client().WithExpertToken(s.Members[i].Token).PostOk($"/api/expert/panels/{s.PanelId}/estimates", Submission(s.QuestionIds, i, 2), HttpStatusCode.OK);
         }
         await s.Staff.PostOk($"/api/panels/{s.PanelId}/members/{s.Members[3].MembershipId}/revoke", new { }, HttpStatusCode.OK);
-        var results = await s.Staff.GetOk($"/api/panels/{s.PanelId}/results");
-        var rounds = results["questions"]![0]!["periods"]![0]!["rounds"]!.AsArray();
-        Assert.Equal(4, (int)rounds[0]!["feedback"]!["n"]!);
-        Assert.Equal(3, (int)rounds[1]!["feedback"]!["n"]!);
+        var results = await s.Staff.GetAs<PanelResultsView>($"/api/panels/{s.PanelId}/results");
+        var rounds = results.Questions[0].Periods[0].Rounds;
+        Assert.Equal(4, rounds[0].Feedback.N);
+        Assert.Equal(3, rounds[1].Feedback.N);
     }
 
     [SkippableFact]
@@ -410,17 +411,12 @@ public abstract class PanelStoryTests(IDatabaseFixture fixture) : ProviderTests(
         {
             await s.App.Client().WithExpertToken(s.Members[i].Token).PostOk($"/api/expert/panels/{s.PanelId}/estimates", Submission(s.QuestionIds, i, 1), HttpStatusCode.OK);
         }
-        await s.App.WithDbAsync(async db =>
-        {
-            var r = await db.Rounds.SingleAsync(x => x.PanelId == s.PanelId);
-            r.ClosesAt = DateTime.UtcNow.AddMinutes(-1);
-            await db.SaveChangesAsync();
-        });
+        s.App.Clock!.Advance(TimeSpan.FromMinutes(11));
         var service = s.App.Services.GetRequiredService<PanelRound.Web.Features.Rounds.RoundDeadlineService>();
         Assert.Equal(1, await service.CloseDueRoundsAsync());
-        var feedback = (await s.Staff.GetOk($"/api/panels/{s.PanelId}/rounds/1/feedback")).AsArray();
+        var feedback = await s.Staff.GetAs<List<FeedbackView>>($"/api/panels/{s.PanelId}/rounds/1/feedback");
         Assert.Equal(15, feedback.Count);
-        Assert.All(feedback, f => Assert.Equal(3, (int)f!["n"]!));
+        Assert.All(feedback, f => Assert.Equal(3, f.N));
     }
 }
 
