@@ -1,6 +1,7 @@
 using System.Net;
 using System.Text.Json;
 using System.Text.Json.Nodes;
+using PanelRound.Core.Statistics;
 using PanelRound.Data.Entities;
 using PanelRound.Web.Features.Rounds;
 using PanelRound.Web.Tests.Infrastructure;
@@ -58,6 +59,9 @@ public abstract class FeedbackAnonymityTests(IDatabaseFixture fixture) : Provide
         var question = new Question { Id = p.PointQuestion, Format = ResponseFormat.Point };
         var settings = FeedbackCalculator.SettingsOf(new PanelSettings { OutlierRule = OutlierRuleSetting.TukeyFences, TrimFraction = 0.1, MinimumGroupSize = 3 });
         var observedMedian = (double?)observed["stats"]?["median"];
+        // Compared as text in one canonical form (the API's type, written by the same serializer): the same test as comparing the JSON trees, many times faster.
+        var observedText = JsonSerializer.Serialize(Api.Read<GroupFeedback>(observed.ToJsonString()), Api.Json);
+        var observedQuartiles = Api.Read<GroupFeedback>(observed.ToJsonString()).Stats?.Spread;
         var consistent = new List<int[]>();
         foreach (var candidate in Multisets(n - 1, gridMin, gridMax))
         {
@@ -66,9 +70,14 @@ public abstract class FeedbackAnonymityTests(IDatabaseFixture fixture) : Provide
             {
                 continue;
             }
+            // A quick filter on the shown quartiles first (the core's anonymous statistics on the bare values); the full comparison decides.
+            if (observedQuartiles is { } oq && AnonymousFeedback.ForPoint(all.Select(v => (double)v).ToList(), settings)?.Spread is { } quick && (quick.Q1 != oq.Q1 || quick.Q3 != oq.Q3))
+            {
+                continue;
+            }
             var counted = all.Select((v, i) => new CountedAnswer(i, question.Id, p.Periods[0], v, null, null, null, null)).ToList();
             var shown = GroupFeedback.From(FeedbackCalculator.Compute(question, p.Periods[0], counted, settings));
-            if (JsonNode.DeepEquals(JsonSerializer.SerializeToNode(shown, Api.Json), observed))
+            if (string.Equals(JsonSerializer.Serialize(shown, Api.Json), observedText, StringComparison.Ordinal))
             {
                 consistent.Add(candidate);
             }

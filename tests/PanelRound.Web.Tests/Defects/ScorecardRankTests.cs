@@ -10,12 +10,10 @@ namespace PanelRound.Web.Tests.Defects;
 /// <summary>An expert's scorecard page shows the rank the scorecard list gives that expert.</summary>
 public abstract partial class ScorecardRankTests(IDatabaseFixture fixture) : ProviderTests(fixture)
 {
-    private static readonly string DemoFolder = Path.Combine(AppContext.BaseDirectory, "demo-data");
-
     [SkippableFact]
     public async Task ExpertPage_EveryScoredDemoExpert_ShowsTheRankOfTheList()
     {
-        var app = await StartAsync(new Dictionary<string, string?> { ["Demo:Enabled"] = "true", ["Demo:Folder"] = DemoFolder });
+        var app = await StartDemoAsync();
         var reviewer = await app.StaffClientAsync(Roles.Reviewer);
         var list = (await reviewer.GetOk("/api/scorecard"))["experts"]!.AsArray()
             .Select(e => (Key: (string)e!["expert"]!, Ranked: (bool)e["ranked"]!, Rank: (int?)e["rank"]))

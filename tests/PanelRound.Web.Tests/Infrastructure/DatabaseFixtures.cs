@@ -17,8 +17,17 @@ public interface IDatabaseFixture
     /// <summary>A connection string to a new, empty database (skips the test when the provider is unavailable outside CI).</summary>
     Task<string> NewDatabaseAsync();
 
-    /// <summary>The provider's shared host with its database emptied, its clock at the real time and its outbox empty.</summary>
-    Task<TestApp> SharedAppAsync();
+    /// <summary>
+    /// The provider's shared host for these settings (one per distinct set, e.g. per environment),
+    /// with its database emptied, its clock at the real time and its outbox empty.
+    /// </summary>
+    Task<TestApp> SharedAppAsync(IReadOnlyDictionary<string, string?>? settings = null);
+
+    /// <summary>
+    /// The provider's host with the demo loaded once (from the demo-data folder beside the tests).
+    /// Tests on it read: apart from the API keys and staff users they add for themselves, they change nothing.
+    /// </summary>
+    Task<TestApp> DemoAppAsync();
 }
 
 /// <summary>The shared host and its reset; a subclass per provider says how to empty the database.</summary>
@@ -37,31 +46,63 @@ public abstract class DatabaseFixture : IDatabaseFixture, IAsyncLifetime
     /// </summary>
     private static readonly Dictionary<string, string?> SharedSettings = new() { ["StaffSignIn:FreeFailures"] = "1000000" };
 
-    private TestApp? _shared;
+    private readonly Dictionary<string, TestApp> _shared = new(StringComparer.Ordinal);
+
+    private readonly SemaphoreSlim _demoGate = new(1, 1);
+
+    private TestApp? _demo;
+
+    /// <summary>The demo files the tests read (copied beside the test assembly).</summary>
+    public static string DemoFolder { get; } = Path.Combine(AppContext.BaseDirectory, "demo-data");
 
     public abstract DatabaseProvider Provider { get; }
 
     public abstract Task<string> NewDatabaseAsync();
 
-    public async Task<TestApp> SharedAppAsync()
+    public async Task<TestApp> SharedAppAsync(IReadOnlyDictionary<string, string?>? settings = null)
     {
-        if (_shared is null)
+        var all = new Dictionary<string, string?>(SharedSettings);
+        foreach (var (k, v) in settings ?? new Dictionary<string, string?>())
         {
-            var app = new TestApp(Provider, await NewDatabaseAsync(), SharedSettings, clock: new TestClock());
+            all[k] = v;
+        }
+        var key = string.Join('\n', all.OrderBy(kv => kv.Key, StringComparer.Ordinal).Select(kv => $"{kv.Key}={kv.Value}"));
+        if (!_shared.TryGetValue(key, out var app))
+        {
+            app = new TestApp(Provider, await NewDatabaseAsync(), all, clock: new TestClock());
             _ = app.Server;
-            _shared = app;
+            _shared[key] = app;
         }
         else
         {
-            await EmptyDatabaseAsync(_shared.ConnectionString);
-            _shared.Clock!.Restart();
+            await EmptyDatabaseAsync(app.ConnectionString);
+            app.Clock!.Restart();
         }
-        if (Directory.Exists(_shared.OutboxFolder))
+        if (Directory.Exists(app.OutboxFolder))
         {
-            Directory.Delete(_shared.OutboxFolder, recursive: true);
+            Directory.Delete(app.OutboxFolder, recursive: true);
         }
-        Directory.CreateDirectory(_shared.OutboxFolder);
-        return _shared;
+        Directory.CreateDirectory(app.OutboxFolder);
+        return app;
+    }
+
+    public async Task<TestApp> DemoAppAsync()
+    {
+        await _demoGate.WaitAsync();
+        try
+        {
+            if (_demo is null)
+            {
+                var app = new TestApp(Provider, await NewDatabaseAsync(), new Dictionary<string, string?> { ["Demo:Enabled"] = "true", ["Demo:Folder"] = DemoFolder });
+                _ = app.Server;
+                _demo = app;
+            }
+            return _demo;
+        }
+        finally
+        {
+            _demoGate.Release();
+        }
     }
 
     /// <summary>Deletes every row except those of <see cref="KeptTables"/>; identities start at 1 again, as in a new database.</summary>
@@ -71,10 +112,11 @@ public abstract class DatabaseFixture : IDatabaseFixture, IAsyncLifetime
 
     public virtual async Task DisposeAsync()
     {
-        if (_shared is not null)
+        foreach (var app in _shared.Values.Append(_demo).OfType<TestApp>())
         {
-            await _shared.DisposeAsync();
+            await app.DisposeAsync();
         }
+        _demoGate.Dispose();
     }
 }
 

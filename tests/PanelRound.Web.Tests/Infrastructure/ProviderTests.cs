@@ -13,7 +13,7 @@ public abstract class ProviderTests(IDatabaseFixture fixture) : IAsyncDisposable
 {
     private readonly List<TestApp> _apps = [];
 
-    private bool _sharedTaken;
+    private readonly HashSet<string> _sharedTaken = new(StringComparer.Ordinal);
 
     protected DatabaseProvider Provider => fixture.Provider;
 
@@ -21,22 +21,27 @@ public abstract class ProviderTests(IDatabaseFixture fixture) : IAsyncDisposable
     protected Task<string> NewDatabaseAsync() => fixture.NewDatabaseAsync();
 
     /// <summary>
-    /// The app on an empty database: the shared host for the test's first call with the default
-    /// settings; otherwise a new host with the settings on a new database (or on the one given,
-    /// to test a restart).
+    /// The app on an empty database: the shared host for these settings on the test's first call
+    /// with them; a new host on a new database for a second app with the same settings, for the
+    /// demo (see <see cref="StartDemoAsync"/> for the shared, read-only one), or on the database
+    /// given (to test a restart).
     /// </summary>
     protected async Task<TestApp> StartAsync(IDictionary<string, string?>? settings = null, string? connectionString = null)
     {
-        if (settings is null && connectionString is null && !_sharedTaken)
+        var key = string.Join('\n', (settings ?? new Dictionary<string, string?>()).OrderBy(kv => kv.Key, StringComparer.Ordinal).Select(kv => $"{kv.Key}={kv.Value}"));
+        var demo = settings is not null && settings.TryGetValue("Demo:Enabled", out var enabled) && string.Equals(enabled, "true", StringComparison.OrdinalIgnoreCase);
+        if (connectionString is null && !demo && _sharedTaken.Add(key))
         {
-            _sharedTaken = true;
-            return await fixture.SharedAppAsync();
+            return await fixture.SharedAppAsync(settings?.AsReadOnly());
         }
         var app = new TestApp(fixture.Provider, connectionString ?? await fixture.NewDatabaseAsync(), settings);
         _apps.Add(app);
         _ = app.Server;
         return app;
     }
+
+    /// <summary>The shared host with the demo loaded; the test only reads (see <see cref="IDatabaseFixture.DemoAppAsync"/>).</summary>
+    protected Task<TestApp> StartDemoAsync() => fixture.DemoAppAsync();
 
     public async ValueTask DisposeAsync()
     {

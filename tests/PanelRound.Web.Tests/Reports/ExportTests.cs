@@ -176,7 +176,7 @@ public abstract class ExportTests(IDatabaseFixture fixture) : ProviderTests(fixt
     [SkippableFact]
     public async Task ScorecardFiles_CsvRowPerExpert_EqualsTheApi_AndPdfReadsBack()
     {
-        var app = await StartAsync(new Dictionary<string, string?> { ["Demo:Enabled"] = "true", ["Demo:Folder"] = Path.Combine(AppContext.BaseDirectory, "demo-data") });
+        var app = await StartDemoAsync();
         var reviewer = await app.StaffClientAsync(PanelRound.Data.Entities.Roles.Reviewer);
         var card = await reviewer.GetOk("/api/scorecard");
         var csv = ReadCsv(await reviewer.GetByteArrayAsync("/api/scorecard/experts.csv"));

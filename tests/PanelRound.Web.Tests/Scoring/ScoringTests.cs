@@ -90,7 +90,7 @@ public abstract class ScoringTests(IDatabaseFixture fixture, ITestOutputHelper o
     [SkippableFact]
     public async Task Demo_Scorecard_EqualsRecomputationFromTheDemoFiles_AndTheTraitsShow()
     {
-        var app = await StartAsync(new Dictionary<string, string?> { ["Demo:Enabled"] = "true", ["Demo:Folder"] = DemoFolder });
+        var app = await StartDemoAsync();
         var reviewer = await app.StaffClientAsync(Roles.Reviewer);
         var scorecard = await reviewer.GetOk("/api/scorecard");
 
