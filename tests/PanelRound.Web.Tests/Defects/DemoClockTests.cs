@@ -3,13 +3,13 @@ using System.Net;
 using System.Net.Http.Headers;
 using System.Net.Http.Json;
 using System.Text;
-using Microsoft.AspNetCore.Mvc.Testing;
-using Microsoft.AspNetCore.TestHost;
+using Microsoft.AspNetCore.Hosting;
 using Microsoft.EntityFrameworkCore;
 using Microsoft.Extensions.DependencyInjection;
 using PanelRound.Core.Domain;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
+using PanelRound.Web.Demo;
 using PanelRound.Web.Infrastructure;
 using PanelRound.Web.Tests.Infrastructure;
 
@@ -24,12 +24,6 @@ public abstract class DemoClockTests(IDatabaseFixture fixture) : ProviderTests(f
 {
     private static readonly string DemoFolder = Path.Combine(AppContext.BaseDirectory, "demo-data");
 
-    /// <summary>The app's clock, stopped at one instant.</summary>
-    private sealed class StoppedClock(DateTimeOffset now) : TimeProvider
-    {
-        public override DateTimeOffset GetUtcNow() => now;
-    }
-
     private sealed record ImportResult(int Added, int Corrected, int Unchanged);
 
     [SkippableTheory]
@@ -42,13 +36,16 @@ public abstract class DemoClockTests(IDatabaseFixture fixture) : ProviderTests(f
         var clockNow = DateTimeOffset.Parse(instant, CultureInfo.InvariantCulture, DateTimeStyles.AdjustToUniversal);
         var now = clockNow.UtcDateTime;
         var today = DateOnly.FromDateTime(now);
-        await using var app = new TestApp(Provider, await NewDatabaseAsync(), new Dictionary<string, string?>
+        // The demo loads as it does at start-up (Demo:Enabled), on an empty database, with the app's clock stopped at the instant.
+        var app = await StartAsync();
+        app.Clock!.StopAt(clockNow);
+        using (var loadScope = app.Services.CreateScope())
         {
-            ["Demo:Enabled"] = "true",
-            ["Demo:Folder"] = DemoFolder,
-        });
-        await using var factory = app.WithWebHostBuilder(b => b.ConfigureTestServices(s => s.AddSingleton<TimeProvider>(new StoppedClock(clockNow))));
-        using var scope = factory.Services.CreateScope();
+            var loader = ActivatorUtilities.CreateInstance<DemoLoader>(loadScope.ServiceProvider);
+            var contentRoot = app.Services.GetRequiredService<IWebHostEnvironment>().ContentRootPath;
+            Assert.True(await loader.LoadIfEmptyAsync(contentRoot, new DemoOptions { Enabled = true, Folder = DemoFolder }));
+        }
+        using var scope = app.Services.CreateScope();
         var db = scope.ServiceProvider.GetRequiredService<PanelRoundDbContext>();
 
         // Observations (the outcomes of past panels among them): of ended periods, known by today.
@@ -119,8 +116,7 @@ public abstract class DemoClockTests(IDatabaseFixture fixture) : ProviderTests(f
             csv.Append(CultureInfo.InvariantCulture,
                 $"{o.Indicator!.Key},{o.Period},{o.Value.ToString("R", CultureInfo.InvariantCulture)},\"{o.Source}\",{o.ObservedOn:yyyy-MM-dd}\n");
         }
-        var reviewer = factory.CreateClient(new WebApplicationFactoryClientOptions { AllowAutoRedirect = false });
-        reviewer.DefaultRequestHeaders.Authorization = new AuthenticationHeaderValue("Bearer", await ApiKeys.CreateAsync(db, "demo-clock", Roles.Reviewer, "test"));
+        var reviewer = app.Client(await ApiKeys.CreateAsync(db, "demo-clock", Roles.Reviewer, "test"));
         using var form = new MultipartFormDataContent();
         var file = new ByteArrayContent(Encoding.UTF8.GetBytes(csv.ToString()));
         file.Headers.ContentType = new MediaTypeHeaderValue("text/csv");

@@ -26,6 +26,9 @@ public sealed class TestClock : TimeProvider
     /// <summary>Starts again at the real time (between tests).</summary>
     public void Restart() => _fake = Fresh();
 
+    /// <summary>Stops the clock at an instant, past or future, until the next test (a day to load the demo on).</summary>
+    public void StopAt(DateTimeOffset instant) => _fake = new FakeTimeProvider(instant);
+
     public override DateTimeOffset GetUtcNow() => _fake.GetUtcNow();
 
     public override TimeZoneInfo LocalTimeZone => _fake.LocalTimeZone;
