@@ -21,6 +21,7 @@ var builder = WebApplication.CreateBuilder(AdminCommands.ConfigArgs(args));
 
 builder.AddPanelRoundData();
 builder.AddPanelRoundAuth();
+builder.AddPanelRoundHardening();
 builder.AddPanelRoundHealth();
 builder.AddPanelRoundWeb();
 builder.AddPanelRoundFeatures();

@@ -58,6 +58,7 @@ public static class WebSetup
 
     public static WebApplication UsePanelRoundPipeline(this WebApplication app)
     {
+        app.UsePanelRoundHardening();
         // API callers get ProblemDetails for unexpected errors; people get the error page.
         app.UseWhen(ctx => ctx.Request.Path.StartsWithSegments("/api"), api => api.UseExceptionHandler());
         if (!app.Environment.IsDevelopment())
@@ -65,6 +66,7 @@ public static class WebSetup
             app.UseWhen(ctx => !ctx.Request.Path.StartsWithSegments("/api"), pages => pages.UseExceptionHandler("/Error"));
         }
         app.UseStatusCodePages();
+        app.UseRateLimiter();
         app.UseStaticFiles();
         app.UseRouting();
         app.UseAuthentication();

@@ -32,6 +32,8 @@ public sealed class DemoInTheBrowserTests : IAsyncLifetime
             b.UseSetting("Database:Provider", "Sqlite");
             b.UseSetting("ConnectionStrings:Sqlite", $"Data Source={_db}");
             b.UseSetting("Demo:Enabled", "true");
+            // A plain-HTTP test server: cookies without the Secure flag, as in development.
+            b.UseSetting("Security:SecureCookies", "false");
             b.UseSetting("Demo:Folder", Path.Combine(AppContext.BaseDirectory, "demo-data"));
         });
         _app.UseKestrel(0);
@@ -59,6 +61,9 @@ public sealed class DemoInTheBrowserTests : IAsyncLifetime
         // The expert: the link becomes a cookie and the token leaves the address bar.
         var expert = await _browser!.NewPageAsync();
         expert.Dialog += (_, d) => d.AcceptAsync();
+        // The Content-Security-Policy blocks inline script and style: the pages must need neither.
+        var blocked = new List<string>();
+        expert.Console += (_, m) => { if (m.Text.Contains("Content Security Policy", StringComparison.Ordinal)) { blocked.Add($"{expert.Url} {m.Location}: {m.Text}"); } };
         await expert.GotoAsync($"{_base}/e/{member.Token}");
         Assert.EndsWith("/expert", expert.Url, StringComparison.Ordinal);
         Assert.DoesNotContain(member.Token, expert.Url, StringComparison.Ordinal);
@@ -80,6 +85,7 @@ public sealed class DemoInTheBrowserTests : IAsyncLifetime
 
         // The facilitator signs in and reads the open round's results and tracker.
         var staff = await _browser.NewPageAsync();
+        staff.Console += (_, m) => { if (m.Text.Contains("Content Security Policy", StringComparison.Ordinal)) { blocked.Add($"{staff.Url} {m.Location}: {m.Text}"); } };
         var facilitator = scenario.Staff.Single(s => s.Role == "Facilitator");
         await staff.GotoAsync($"{_base}/Account/Login");
         await staff.FillAsync("#Input_Email", facilitator.Email);
@@ -91,6 +97,7 @@ public sealed class DemoInTheBrowserTests : IAsyncLifetime
         await staff.GetByRole(AriaRole.Link, new() { Name = "Results" }).ClickAsync();
         await Assertions.Expect(staff.GetByText("2 (live)").First).ToBeVisibleAsync();
         await staff.ScreenshotAsync(new PageScreenshotOptions { Path = Path.Combine(Path.GetTempPath(), "panelround-results.png"), FullPage = true });
+        Assert.True(blocked.Count == 0, string.Join("\n", blocked));
     }
 
     public async Task DisposeAsync()

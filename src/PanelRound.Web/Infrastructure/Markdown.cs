@@ -8,7 +8,15 @@ public static class Markdown
 {
     private static readonly MarkdownPipeline Pipeline = new MarkdownPipelineBuilder().UseAdvancedExtensions().DisableHtml().Build();
 
-    private static readonly HtmlSanitizer Sanitizer = new();
+    private static readonly HtmlSanitizer Sanitizer = NewSanitizer();
+
+    /// <summary>The default sanitiser without style attributes (e.g. table alignment): the Content-Security-Policy refuses inline styles.</summary>
+    private static HtmlSanitizer NewSanitizer()
+    {
+        var sanitizer = new HtmlSanitizer();
+        sanitizer.AllowedAttributes.Remove("style");
+        return sanitizer;
+    }
 
     public static string ToSafeHtml(string? markdown) =>
         string.IsNullOrWhiteSpace(markdown) ? "" : Sanitizer.Sanitize(Markdig.Markdown.ToHtml(markdown, Pipeline));

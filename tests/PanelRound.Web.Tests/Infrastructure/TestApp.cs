@@ -31,6 +31,9 @@ public sealed class TestApp : WebApplicationFactory<Program>
             ["Demo:Enabled"] = "false",
             // Tests close rounds at their deadline explicitly (RoundDeadlineService.CloseDueRoundsAsync).
             ["Rounds:DeadlineCheckSeconds"] = "0",
+            // Plain HTTP in the test server; the tests of these protections turn them back on.
+            ["Security:SecureCookies"] = "false",
+            ["RateLimits:Enabled"] = "false",
             ["Mail:OutboxFolder"] = Path.Combine(Path.GetTempPath(), "panelround-test-outbox", Guid.NewGuid().ToString("N")),
         };
         foreach (var (k, v) in extra ?? new Dictionary<string, string?>())

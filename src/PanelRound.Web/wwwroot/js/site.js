@@ -19,3 +19,16 @@ document.querySelectorAll('form[data-plausible-check]').forEach(function (form) 
     }
   });
 });
+// Asks before an irreversible action: <button data-confirm="Question?">.
+document.querySelectorAll('[data-confirm]').forEach(function (el) {
+  el.addEventListener('click', function (e) {
+    if (!window.confirm(el.getAttribute('data-confirm'))) {
+      e.preventDefault();
+    }
+  });
+});
+// Selects a one-time value (a link, a key) when it is clicked or focused, ready to copy.
+document.querySelectorAll('input[data-select-on-focus]').forEach(function (el) {
+  el.addEventListener('focus', function () { el.select(); });
+  el.addEventListener('click', function () { el.select(); });
+});

@@ -69,7 +69,7 @@ public static class ScorecardFormat
 
         var panels = track.Final.Select(f => f.Panel.Key).Distinct(StringComparer.Ordinal).ToList();
         var svg = new StringBuilder();
-        svg.Append(CultureInfo.InvariantCulture, $"<svg xmlns=\"http://www.w3.org/2000/svg\" viewBox=\"0 0 {F(width)} {F(height)}\" class=\"w-100\" style=\"max-width:{F(width)}px\" role=\"img\" aria-label=\"{Encode(track.Name)}: final-round forecasts against the observed series\">");
+        svg.Append(CultureInfo.InvariantCulture, $"<svg xmlns=\"http://www.w3.org/2000/svg\" viewBox=\"0 0 {F(width)} {F(height)}\" class=\"w-100 track-chart\" role=\"img\" aria-label=\"{Encode(track.Name)}: final-round forecasts against the observed series\">");
         for (var t = 0; t <= 4; t++)
         {
             var v = min + t * (max - min) / 4;
