@@ -40,6 +40,8 @@ public class PanelRoundDbContext(DbContextOptions<PanelRoundDbContext> options)
 
     public DbSet<ConsensusEntry> Consensus => Set<ConsensusEntry>();
 
+    public DbSet<QuestionRelation> Relations => Set<QuestionRelation>();
+
     public DbSet<AuditEvent> AuditEvents => Set<AuditEvent>();
 
     public DbSet<ApiKey> ApiKeys => Set<ApiKey>();

@@ -424,6 +424,49 @@ namespace PanelRound.Migrations.Postgres.Migrations
                     b.ToTable("Experts");
                 });
 
+            modelBuilder.Entity("PanelRound.Data.Entities.FrozenFeedback", b =>
+                {
+                    b.Property<long>("Id")
+                        .ValueGeneratedOnAdd()
+                        .HasColumnType("bigint");
+
+                    NpgsqlPropertyBuilderExtensions.UseIdentityByDefaultColumn(b.Property<long>("Id"));
+
+                    b.Property<int>("N")
+                        .HasColumnType("integer");
+
+                    b.Property<string>("Period")
+                        .IsRequired()
+                        .HasMaxLength(10)
+                        .HasColumnType("character varying(10)");
+
+                    b.Property<int>("QuestionId")
+                        .HasColumnType("integer");
+
+                    b.Property<string>("RationalesJson")
+                        .IsRequired()
+                        .HasColumnType("text");
+
+                    b.Property<int>("RoundId")
+                        .HasColumnType("integer");
+
+                    b.Property<string>("StatisticsJson")
+                        .IsRequired()
+                        .HasColumnType("text");
+
+                    b.Property<bool>("Withheld")
+                        .HasColumnType("boolean");
+
+                    b.HasKey("Id");
+
+                    b.HasIndex("QuestionId");
+
+                    b.HasIndex("RoundId", "QuestionId", "Period")
+                        .IsUnique();
+
+                    b.ToTable("RoundFeedback", (string)null);
+                });
+
             modelBuilder.Entity("PanelRound.Data.Entities.Indicator", b =>
                 {
                     b.Property<int>("Id")
@@ -581,8 +624,16 @@ namespace PanelRound.Migrations.Postgres.Migrations
                         {
                             b1.IsRequired();
 
+                            b1.Property<int>("BenchmarkWindow")
+                                .HasColumnType("integer");
+
                             b1.Property<double>("ConsensusThreshold")
                                 .HasColumnType("double precision");
+
+                            b1.Property<string>("ExpertBenchmark")
+                                .IsRequired()
+                                .HasMaxLength(20)
+                                .HasColumnType("character varying(20)");
 
                             b1.Property<int>("MinimumGroupSize")
                                 .HasColumnType("integer");
@@ -593,8 +644,14 @@ namespace PanelRound.Migrations.Postgres.Migrations
                             b1.Property<bool>("OutliersMustJustify")
                                 .HasColumnType("boolean");
 
+                            b1.Property<double>("RelationTolerance")
+                                .HasColumnType("double precision");
+
                             b1.Property<int>("RoundCap")
                                 .HasColumnType("integer");
+
+                            b1.Property<bool>("ShowBenchmarkToExperts")
+                                .HasColumnType("boolean");
 
                             b1.Property<bool>("ShowRationales")
                                 .HasColumnType("boolean");
@@ -727,6 +784,84 @@ namespace PanelRound.Migrations.Postgres.Migrations
                     b.ToTable("Questions");
                 });
 
+            modelBuilder.Entity("PanelRound.Data.Entities.QuestionRelation", b =>
+                {
+                    b.Property<int>("Id")
+                        .ValueGeneratedOnAdd()
+                        .HasColumnType("integer");
+
+                    NpgsqlPropertyBuilderExtensions.UseIdentityByDefaultColumn(b.Property<int>("Id"));
+
+                    b.Property<DateTime>("CreatedAt")
+                        .HasColumnType("timestamp with time zone");
+
+                    b.Property<double>("FirstFactor")
+                        .HasColumnType("double precision");
+
+                    b.Property<string>("FirstLabel")
+                        .IsRequired()
+                        .HasMaxLength(300)
+                        .HasColumnType("character varying(300)");
+
+                    b.Property<int?>("FirstQuestionId")
+                        .HasColumnType("integer");
+
+                    b.Property<string>("FirstUnit")
+                        .IsRequired()
+                        .HasMaxLength(50)
+                        .HasColumnType("character varying(50)");
+
+                    b.Property<int>("PanelId")
+                        .HasColumnType("integer");
+
+                    b.Property<double>("ResultFactor")
+                        .HasColumnType("double precision");
+
+                    b.Property<string>("ResultLabel")
+                        .IsRequired()
+                        .HasMaxLength(300)
+                        .HasColumnType("character varying(300)");
+
+                    b.Property<int?>("ResultQuestionId")
+                        .HasColumnType("integer");
+
+                    b.Property<string>("ResultUnit")
+                        .IsRequired()
+                        .HasMaxLength(50)
+                        .HasColumnType("character varying(50)");
+
+                    b.Property<double>("SecondFactor")
+                        .HasColumnType("double precision");
+
+                    b.Property<string>("SecondLabel")
+                        .IsRequired()
+                        .HasMaxLength(300)
+                        .HasColumnType("character varying(300)");
+
+                    b.Property<int?>("SecondQuestionId")
+                        .HasColumnType("integer");
+
+                    b.Property<string>("SecondUnit")
+                        .IsRequired()
+                        .HasMaxLength(50)
+                        .HasColumnType("character varying(50)");
+
+                    b.Property<int>("Shape")
+                        .HasColumnType("integer");
+
+                    b.HasKey("Id");
+
+                    b.HasIndex("FirstQuestionId");
+
+                    b.HasIndex("PanelId");
+
+                    b.HasIndex("ResultQuestionId");
+
+                    b.HasIndex("SecondQuestionId");
+
+                    b.ToTable("Relations");
+                });
+
             modelBuilder.Entity("PanelRound.Data.Entities.Round", b =>
                 {
                     b.Property<int>("Id")
@@ -767,49 +902,6 @@ namespace PanelRound.Migrations.Postgres.Migrations
                         .IsUnique();
 
                     b.ToTable("Rounds");
-                });
-
-            modelBuilder.Entity("PanelRound.Data.Entities.RoundFeedback", b =>
-                {
-                    b.Property<long>("Id")
-                        .ValueGeneratedOnAdd()
-                        .HasColumnType("bigint");
-
-                    NpgsqlPropertyBuilderExtensions.UseIdentityByDefaultColumn(b.Property<long>("Id"));
-
-                    b.Property<int>("N")
-                        .HasColumnType("integer");
-
-                    b.Property<string>("Period")
-                        .IsRequired()
-                        .HasMaxLength(10)
-                        .HasColumnType("character varying(10)");
-
-                    b.Property<int>("QuestionId")
-                        .HasColumnType("integer");
-
-                    b.Property<string>("RationalesJson")
-                        .IsRequired()
-                        .HasColumnType("text");
-
-                    b.Property<int>("RoundId")
-                        .HasColumnType("integer");
-
-                    b.Property<string>("StatisticsJson")
-                        .IsRequired()
-                        .HasColumnType("text");
-
-                    b.Property<bool>("Withheld")
-                        .HasColumnType("boolean");
-
-                    b.HasKey("Id");
-
-                    b.HasIndex("QuestionId");
-
-                    b.HasIndex("RoundId", "QuestionId", "Period")
-                        .IsUnique();
-
-                    b.ToTable("RoundFeedback");
                 });
 
             modelBuilder.Entity("PanelRound.Data.Entities.StaffUser", b =>
@@ -973,6 +1065,23 @@ namespace PanelRound.Migrations.Postgres.Migrations
                     b.Navigation("Membership");
                 });
 
+            modelBuilder.Entity("PanelRound.Data.Entities.FrozenFeedback", b =>
+                {
+                    b.HasOne("PanelRound.Data.Entities.Question", null)
+                        .WithMany()
+                        .HasForeignKey("QuestionId")
+                        .OnDelete(DeleteBehavior.Restrict)
+                        .IsRequired();
+
+                    b.HasOne("PanelRound.Data.Entities.Round", "Round")
+                        .WithMany("Feedback")
+                        .HasForeignKey("RoundId")
+                        .OnDelete(DeleteBehavior.Cascade)
+                        .IsRequired();
+
+                    b.Navigation("Round");
+                });
+
             modelBuilder.Entity("PanelRound.Data.Entities.Observation", b =>
                 {
                     b.HasOne("PanelRound.Data.Entities.Indicator", "Indicator")
@@ -1022,6 +1131,30 @@ namespace PanelRound.Migrations.Postgres.Migrations
                     b.Navigation("Panel");
                 });
 
+            modelBuilder.Entity("PanelRound.Data.Entities.QuestionRelation", b =>
+                {
+                    b.HasOne("PanelRound.Data.Entities.Question", null)
+                        .WithMany()
+                        .HasForeignKey("FirstQuestionId")
+                        .OnDelete(DeleteBehavior.Cascade);
+
+                    b.HasOne("PanelRound.Data.Entities.Panel", null)
+                        .WithMany()
+                        .HasForeignKey("PanelId")
+                        .OnDelete(DeleteBehavior.Cascade)
+                        .IsRequired();
+
+                    b.HasOne("PanelRound.Data.Entities.Question", null)
+                        .WithMany()
+                        .HasForeignKey("ResultQuestionId")
+                        .OnDelete(DeleteBehavior.Cascade);
+
+                    b.HasOne("PanelRound.Data.Entities.Question", null)
+                        .WithMany()
+                        .HasForeignKey("SecondQuestionId")
+                        .OnDelete(DeleteBehavior.Cascade);
+                });
+
             modelBuilder.Entity("PanelRound.Data.Entities.Round", b =>
                 {
                     b.HasOne("PanelRound.Data.Entities.Panel", "Panel")
@@ -1031,23 +1164,6 @@ namespace PanelRound.Migrations.Postgres.Migrations
                         .IsRequired();
 
                     b.Navigation("Panel");
-                });
-
-            modelBuilder.Entity("PanelRound.Data.Entities.RoundFeedback", b =>
-                {
-                    b.HasOne("PanelRound.Data.Entities.Question", null)
-                        .WithMany()
-                        .HasForeignKey("QuestionId")
-                        .OnDelete(DeleteBehavior.Restrict)
-                        .IsRequired();
-
-                    b.HasOne("PanelRound.Data.Entities.Round", "Round")
-                        .WithMany("Feedback")
-                        .HasForeignKey("RoundId")
-                        .OnDelete(DeleteBehavior.Cascade)
-                        .IsRequired();
-
-                    b.Navigation("Round");
                 });
 
             modelBuilder.Entity("PanelRound.Data.Entities.Expert", b =>

@@ -403,6 +403,47 @@ namespace PanelRound.Migrations.Sqlite.Migrations
                     b.ToTable("Experts");
                 });
 
+            modelBuilder.Entity("PanelRound.Data.Entities.FrozenFeedback", b =>
+                {
+                    b.Property<long>("Id")
+                        .ValueGeneratedOnAdd()
+                        .HasColumnType("INTEGER");
+
+                    b.Property<int>("N")
+                        .HasColumnType("INTEGER");
+
+                    b.Property<string>("Period")
+                        .IsRequired()
+                        .HasMaxLength(10)
+                        .HasColumnType("TEXT");
+
+                    b.Property<int>("QuestionId")
+                        .HasColumnType("INTEGER");
+
+                    b.Property<string>("RationalesJson")
+                        .IsRequired()
+                        .HasColumnType("TEXT");
+
+                    b.Property<int>("RoundId")
+                        .HasColumnType("INTEGER");
+
+                    b.Property<string>("StatisticsJson")
+                        .IsRequired()
+                        .HasColumnType("TEXT");
+
+                    b.Property<bool>("Withheld")
+                        .HasColumnType("INTEGER");
+
+                    b.HasKey("Id");
+
+                    b.HasIndex("QuestionId");
+
+                    b.HasIndex("RoundId", "QuestionId", "Period")
+                        .IsUnique();
+
+                    b.ToTable("RoundFeedback", (string)null);
+                });
+
             modelBuilder.Entity("PanelRound.Data.Entities.Indicator", b =>
                 {
                     b.Property<int>("Id")
@@ -554,8 +595,16 @@ namespace PanelRound.Migrations.Sqlite.Migrations
                         {
                             b1.IsRequired();
 
+                            b1.Property<int>("BenchmarkWindow")
+                                .HasColumnType("INTEGER");
+
                             b1.Property<double>("ConsensusThreshold")
                                 .HasColumnType("REAL");
+
+                            b1.Property<string>("ExpertBenchmark")
+                                .IsRequired()
+                                .HasMaxLength(20)
+                                .HasColumnType("TEXT");
 
                             b1.Property<int>("MinimumGroupSize")
                                 .HasColumnType("INTEGER");
@@ -566,7 +615,13 @@ namespace PanelRound.Migrations.Sqlite.Migrations
                             b1.Property<bool>("OutliersMustJustify")
                                 .HasColumnType("INTEGER");
 
+                            b1.Property<double>("RelationTolerance")
+                                .HasColumnType("REAL");
+
                             b1.Property<int>("RoundCap")
+                                .HasColumnType("INTEGER");
+
+                            b1.Property<bool>("ShowBenchmarkToExperts")
                                 .HasColumnType("INTEGER");
 
                             b1.Property<bool>("ShowRationales")
@@ -696,6 +751,82 @@ namespace PanelRound.Migrations.Sqlite.Migrations
                     b.ToTable("Questions");
                 });
 
+            modelBuilder.Entity("PanelRound.Data.Entities.QuestionRelation", b =>
+                {
+                    b.Property<int>("Id")
+                        .ValueGeneratedOnAdd()
+                        .HasColumnType("INTEGER");
+
+                    b.Property<DateTime>("CreatedAt")
+                        .HasColumnType("TEXT");
+
+                    b.Property<double>("FirstFactor")
+                        .HasColumnType("REAL");
+
+                    b.Property<string>("FirstLabel")
+                        .IsRequired()
+                        .HasMaxLength(300)
+                        .HasColumnType("TEXT");
+
+                    b.Property<int?>("FirstQuestionId")
+                        .HasColumnType("INTEGER");
+
+                    b.Property<string>("FirstUnit")
+                        .IsRequired()
+                        .HasMaxLength(50)
+                        .HasColumnType("TEXT");
+
+                    b.Property<int>("PanelId")
+                        .HasColumnType("INTEGER");
+
+                    b.Property<double>("ResultFactor")
+                        .HasColumnType("REAL");
+
+                    b.Property<string>("ResultLabel")
+                        .IsRequired()
+                        .HasMaxLength(300)
+                        .HasColumnType("TEXT");
+
+                    b.Property<int?>("ResultQuestionId")
+                        .HasColumnType("INTEGER");
+
+                    b.Property<string>("ResultUnit")
+                        .IsRequired()
+                        .HasMaxLength(50)
+                        .HasColumnType("TEXT");
+
+                    b.Property<double>("SecondFactor")
+                        .HasColumnType("REAL");
+
+                    b.Property<string>("SecondLabel")
+                        .IsRequired()
+                        .HasMaxLength(300)
+                        .HasColumnType("TEXT");
+
+                    b.Property<int?>("SecondQuestionId")
+                        .HasColumnType("INTEGER");
+
+                    b.Property<string>("SecondUnit")
+                        .IsRequired()
+                        .HasMaxLength(50)
+                        .HasColumnType("TEXT");
+
+                    b.Property<int>("Shape")
+                        .HasColumnType("INTEGER");
+
+                    b.HasKey("Id");
+
+                    b.HasIndex("FirstQuestionId");
+
+                    b.HasIndex("PanelId");
+
+                    b.HasIndex("ResultQuestionId");
+
+                    b.HasIndex("SecondQuestionId");
+
+                    b.ToTable("Relations");
+                });
+
             modelBuilder.Entity("PanelRound.Data.Entities.Round", b =>
                 {
                     b.Property<int>("Id")
@@ -734,47 +865,6 @@ namespace PanelRound.Migrations.Sqlite.Migrations
                         .IsUnique();
 
                     b.ToTable("Rounds");
-                });
-
-            modelBuilder.Entity("PanelRound.Data.Entities.RoundFeedback", b =>
-                {
-                    b.Property<long>("Id")
-                        .ValueGeneratedOnAdd()
-                        .HasColumnType("INTEGER");
-
-                    b.Property<int>("N")
-                        .HasColumnType("INTEGER");
-
-                    b.Property<string>("Period")
-                        .IsRequired()
-                        .HasMaxLength(10)
-                        .HasColumnType("TEXT");
-
-                    b.Property<int>("QuestionId")
-                        .HasColumnType("INTEGER");
-
-                    b.Property<string>("RationalesJson")
-                        .IsRequired()
-                        .HasColumnType("TEXT");
-
-                    b.Property<int>("RoundId")
-                        .HasColumnType("INTEGER");
-
-                    b.Property<string>("StatisticsJson")
-                        .IsRequired()
-                        .HasColumnType("TEXT");
-
-                    b.Property<bool>("Withheld")
-                        .HasColumnType("INTEGER");
-
-                    b.HasKey("Id");
-
-                    b.HasIndex("QuestionId");
-
-                    b.HasIndex("RoundId", "QuestionId", "Period")
-                        .IsUnique();
-
-                    b.ToTable("RoundFeedback");
                 });
 
             modelBuilder.Entity("PanelRound.Data.Entities.StaffUser", b =>
@@ -938,6 +1028,23 @@ namespace PanelRound.Migrations.Sqlite.Migrations
                     b.Navigation("Membership");
                 });
 
+            modelBuilder.Entity("PanelRound.Data.Entities.FrozenFeedback", b =>
+                {
+                    b.HasOne("PanelRound.Data.Entities.Question", null)
+                        .WithMany()
+                        .HasForeignKey("QuestionId")
+                        .OnDelete(DeleteBehavior.Restrict)
+                        .IsRequired();
+
+                    b.HasOne("PanelRound.Data.Entities.Round", "Round")
+                        .WithMany("Feedback")
+                        .HasForeignKey("RoundId")
+                        .OnDelete(DeleteBehavior.Cascade)
+                        .IsRequired();
+
+                    b.Navigation("Round");
+                });
+
             modelBuilder.Entity("PanelRound.Data.Entities.Observation", b =>
                 {
                     b.HasOne("PanelRound.Data.Entities.Indicator", "Indicator")
@@ -987,6 +1094,30 @@ namespace PanelRound.Migrations.Sqlite.Migrations
                     b.Navigation("Panel");
                 });
 
+            modelBuilder.Entity("PanelRound.Data.Entities.QuestionRelation", b =>
+                {
+                    b.HasOne("PanelRound.Data.Entities.Question", null)
+                        .WithMany()
+                        .HasForeignKey("FirstQuestionId")
+                        .OnDelete(DeleteBehavior.Cascade);
+
+                    b.HasOne("PanelRound.Data.Entities.Panel", null)
+                        .WithMany()
+                        .HasForeignKey("PanelId")
+                        .OnDelete(DeleteBehavior.Cascade)
+                        .IsRequired();
+
+                    b.HasOne("PanelRound.Data.Entities.Question", null)
+                        .WithMany()
+                        .HasForeignKey("ResultQuestionId")
+                        .OnDelete(DeleteBehavior.Cascade);
+
+                    b.HasOne("PanelRound.Data.Entities.Question", null)
+                        .WithMany()
+                        .HasForeignKey("SecondQuestionId")
+                        .OnDelete(DeleteBehavior.Cascade);
+                });
+
             modelBuilder.Entity("PanelRound.Data.Entities.Round", b =>
                 {
                     b.HasOne("PanelRound.Data.Entities.Panel", "Panel")
@@ -996,23 +1127,6 @@ namespace PanelRound.Migrations.Sqlite.Migrations
                         .IsRequired();
 
                     b.Navigation("Panel");
-                });
-
-            modelBuilder.Entity("PanelRound.Data.Entities.RoundFeedback", b =>
-                {
-                    b.HasOne("PanelRound.Data.Entities.Question", null)
-                        .WithMany()
-                        .HasForeignKey("QuestionId")
-                        .OnDelete(DeleteBehavior.Restrict)
-                        .IsRequired();
-
-                    b.HasOne("PanelRound.Data.Entities.Round", "Round")
-                        .WithMany("Feedback")
-                        .HasForeignKey("RoundId")
-                        .OnDelete(DeleteBehavior.Cascade)
-                        .IsRequired();
-
-                    b.Navigation("Round");
                 });
 
             modelBuilder.Entity("PanelRound.Data.Entities.Expert", b =>

@@ -70,4 +70,7 @@ public static class FieldLengths
 
     /// <summary>How a consensus value was computed (its method's name).</summary>
     public const int ConsensusMethod = 100;
+
+    /// <summary>A benchmark method's key, e.g. <c>seasonal-naive</c>.</summary>
+    public const int BenchmarkKey = 20;
 }

@@ -40,7 +40,7 @@ internal sealed class PanelConfiguration : IEntityTypeConfiguration<Panel>
         b.Property(x => x.ExternalKey).HasMaxLength(FieldLengths.ExternalKey);
         b.HasIndex(x => x.ExternalKey).IsUnique();
         b.Property(x => x.Version).IsConcurrencyToken();
-        b.ComplexProperty(x => x.Settings);
+        b.ComplexProperty(x => x.Settings, s => s.Property(x => x.ExpertBenchmark).HasMaxLength(FieldLengths.BenchmarkKey));
         b.HasMany(x => x.Questions).WithOne(x => x.Panel).HasForeignKey(x => x.PanelId).OnDelete(DeleteBehavior.Cascade);
         b.HasMany(x => x.Rounds).WithOne(x => x.Panel).HasForeignKey(x => x.PanelId).OnDelete(DeleteBehavior.Cascade);
         b.HasMany(x => x.Memberships).WithOne(x => x.Panel).HasForeignKey(x => x.PanelId).OnDelete(DeleteBehavior.Cascade);
@@ -134,5 +134,24 @@ internal sealed class ConsensusConfiguration : IEntityTypeConfiguration<Consensu
         b.HasIndex(x => new { x.PanelId, x.QuestionId, x.Period }).IsUnique();
         b.HasOne<Panel>().WithMany().HasForeignKey(x => x.PanelId).OnDelete(DeleteBehavior.Cascade);
         b.HasOne<Question>().WithMany().HasForeignKey(x => x.QuestionId).OnDelete(DeleteBehavior.Restrict);
+    }
+}
+
+internal sealed class QuestionRelationConfiguration : IEntityTypeConfiguration<QuestionRelation>
+{
+    public void Configure(EntityTypeBuilder<QuestionRelation> b)
+    {
+        b.HasOne<Panel>().WithMany().HasForeignKey(x => x.PanelId).OnDelete(DeleteBehavior.Cascade);
+        b.HasOne<Question>().WithMany().HasForeignKey(x => x.ResultQuestionId).OnDelete(DeleteBehavior.Cascade);
+        b.HasOne<Question>().WithMany().HasForeignKey(x => x.FirstQuestionId).OnDelete(DeleteBehavior.Cascade);
+        b.HasOne<Question>().WithMany().HasForeignKey(x => x.SecondQuestionId).OnDelete(DeleteBehavior.Cascade);
+        foreach (var label in new[] { nameof(QuestionRelation.ResultLabel), nameof(QuestionRelation.FirstLabel), nameof(QuestionRelation.SecondLabel) })
+        {
+            b.Property<string>(label).HasMaxLength(FieldLengths.Title).IsRequired();
+        }
+        foreach (var unit in new[] { nameof(QuestionRelation.ResultUnit), nameof(QuestionRelation.FirstUnit), nameof(QuestionRelation.SecondUnit) })
+        {
+            b.Property<string>(unit).HasMaxLength(FieldLengths.UnitLabel).IsRequired();
+        }
     }
 }

@@ -68,3 +68,13 @@ public enum ConsensusWeighting
     /// <summary>Weights from each expert's scored track record.</summary>
     TrackRecord = 1,
 }
+
+/// <summary>The shape of a relation between three questions.</summary>
+public enum RelationShape
+{
+    /// <summary>result = first × second (income = value × yield).</summary>
+    Product = 0,
+
+    /// <summary>result = first + second (price = land + construction cost).</summary>
+    Sum = 1,
+}

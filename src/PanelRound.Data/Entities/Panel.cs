@@ -64,6 +64,18 @@ public class PanelSettings
     public bool OutliersMustJustify { get; set; } = true;
 
     public ConsensusWeighting Weighting { get; set; } = ConsensusWeighting.Equal;
+
+    /// <summary>Show one statistical benchmark on the expert's chart; off by default, because a shown number anchors answers.</summary>
+    public bool ShowBenchmarkToExperts { get; set; }
+
+    /// <summary>The benchmark shown to experts when <see cref="ShowBenchmarkToExperts"/> is on, by key (<c>naive</c>, <c>drift</c>, <c>mean</c>, <c>ses</c>, <c>holt</c>, <c>damped</c>, <c>seasonal-naive</c>).</summary>
+    public string ExpertBenchmark { get; set; } = "naive";
+
+    /// <summary>k of the benchmark "mean of the last k observations".</summary>
+    public int BenchmarkWindow { get; set; } = 3;
+
+    /// <summary>A relation between three questions is flagged where the given and implied values differ by more than this share (0.05 = 5%).</summary>
+    public double RelationTolerance { get; set; } = 0.05;
 }
 
 /// <summary>A panel's ask about one indicator.</summary>

@@ -38,6 +38,10 @@ public static class FeatureSetup
 
         // Results: results per question, the consensus and the panel's conclusion.
         services.AddScoped<PanelResults>();
+        services.AddScoped<Benchmarks.PanelBenchmarks>();
+        services.AddScoped<Benchmarks.BenchmarkScoring>();
+        services.AddScoped<Benchmarks.ExpertBenchmarkLine>();
+        services.AddScoped<Relations.PanelRelations>();
         services.AddScoped<ConsensusPublisher>();
         services.AddScoped<PanelConclusion>();
 

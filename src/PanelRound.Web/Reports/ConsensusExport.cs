@@ -11,11 +11,12 @@ namespace PanelRound.Web.Reports;
 /// <summary>One row of the tidy consensus table: one question-period of a concluded panel.</summary>
 /// <remarks>
 /// The columns, in this order, are an interface that financial models and scripts depend on:
-/// <c>panel_id,panel,question_id,question,indicator,unit,format,period,consensus,low,high,band,n,method,round,published_at</c>.
+/// <c>panel_id,panel,question_id,question,indicator,unit,format,period,consensus,low,high,band,n,method,round,published_at</c>;
+/// the extended files (<c>?include=benchmarks,derived</c>) add <c>source</c> last (<see cref="ConsensusExtras"/>).
 /// </remarks>
 public sealed record ConsensusRow(
     int PanelId, string Panel, int QuestionId, string Question, string Indicator, string Unit, string Format, string Period,
-    double Consensus, double Low, double High, string Band, int N, string Method, int Round, DateTime PublishedAt);
+    double Consensus, double Low, double High, string Band, int N, string Method, int Round, DateTime PublishedAt, string Source = ConsensusExtras.ConsensusSource);
 
 /// <summary>The published consensus of a panel as a tidy table, and the same table as CSV and XLSX.</summary>
 public static class ConsensusExport
@@ -23,6 +24,8 @@ public static class ConsensusExport
     /// <summary>The CSV and XLSX columns, in their fixed order.</summary>
     public static readonly IReadOnlyList<string> Columns =
         ["panel_id", "panel", "question_id", "question", "indicator", "unit", "format", "period", "consensus", "low", "high", "band", "n", "method", "round", "published_at"];
+
+    private static readonly double[] TidyWidths = [8, 36, 11, 36, 26, 14, 8, 9, 13, 13, 13, 9, 5, 16, 6, 22];
 
     /// <summary>What <c>low</c> and <c>high</c> are: P10-P90 for Range questions, Q1-Q3 for Point questions.</summary>
     public static string BandOf(ResponseFormat format) => format == ResponseFormat.Range ? "P10-P90" : "Q1-Q3";
@@ -53,10 +56,11 @@ public static class ConsensusExport
     }
 
     /// <summary>Header row, comma-separated, invariant numbers (round-trip precision), ISO 8601 UTC times, UTF-8 without BOM, texts neutralised.</summary>
-    public static byte[] ToCsv(IReadOnlyList<ConsensusRow> rows)
+    public static byte[] ToCsv(IReadOnlyList<ConsensusRow> rows, bool withSource = false)
     {
         using var writer = new StringWriter(CultureInfo.InvariantCulture) { NewLine = "\r\n" };
-        CsvFiles.Write(writer, Columns, rows.Select(r => (IReadOnlyList<string?>)Fields(r).Select(f => f.Number is { } n ? Num(n) : SafeCells.Text(f.Text)).ToList()));
+        CsvFiles.Write(writer, withSource ? [.. Columns, ConsensusExtras.SourceColumn] : Columns,
+            rows.Select(r => (IReadOnlyList<string?>)Fields(r, withSource).Select(f => f.Number is { } n ? Num(n) : SafeCells.Text(f.Text)).ToList()));
         return new UTF8Encoding(false).GetBytes(writer.ToString());
     }
 
@@ -65,14 +69,15 @@ public static class ConsensusExport
     /// sheet per question with its path laid out by period (periods as columns; consensus, low and
     /// high as rows) for a model to reference, and a sheet with the method, settings and caution.
     /// </summary>
-    public static byte[] ToXlsx(Panel panel, IReadOnlyList<ConsensusRow> rows)
+    public static byte[] ToXlsx(Panel panel, IReadOnlyList<ConsensusRow> rows, bool withSource = false)
     {
+        IReadOnlyList<string> columns = withSource ? [.. Columns, ConsensusExtras.SourceColumn] : Columns;
         var sheets = new List<XlsxSheet>
         {
-            new("consensus", [8, 36, 11, 36, 26, 14, 8, 9, 13, 13, 13, 9, 5, 16, 6, 22],
-                [Columns.Select(c => (XlsxCell)c).ToList(), .. rows.Select(r => (IReadOnlyList<XlsxCell>)Fields(r).ToList())]),
+            new("consensus", withSource ? [.. TidyWidths, 20] : TidyWidths,
+                [columns.Select(c => (XlsxCell)c).ToList(), .. rows.Select(r => (IReadOnlyList<XlsxCell>)Fields(r, withSource).ToList())]),
         };
-        foreach (var question in rows.GroupBy(r => r.QuestionId))
+        foreach (var question in rows.Where(r => r.Source == ConsensusExtras.ConsensusSource).GroupBy(r => r.QuestionId))
         {
             var first = question.First();
             var periods = question.ToList();
@@ -106,10 +111,11 @@ public static class ConsensusExport
     /// <summary>The caution every export and report carries.</summary>
     public const string Caution = "A forecast by an expert panel, not a valuation and not investment advice. Rely on licensed valuers for valuations and follow the regulation that applies where you invest and lend.";
 
-    private static IEnumerable<XlsxCell> Fields(ConsensusRow r) =>
+    private static IEnumerable<XlsxCell> Fields(ConsensusRow r, bool withSource = false) =>
     [
         r.PanelId, r.Panel, r.QuestionId, r.Question, r.Indicator, r.Unit, r.Format, r.Period,
         r.Consensus, r.Low, r.High, r.Band, r.N, r.Method, r.Round, Iso(r.PublishedAt),
+        .. withSource ? new XlsxCell[] { r.Source } : [],
     ];
 
     private static string Num(double v) => v.ToString("R", CultureInfo.InvariantCulture);

@@ -40,15 +40,18 @@ public static partial class PanelDossier
             .Select(e => new { e.RoundId, e.MembershipId }).Distinct().ToListAsync();
         var members = await db.Memberships.AsNoTracking().Where(m => m.PanelId == panelId).Include(m => m.Expert).ToListAsync();
         var audit = await db.AuditEvents.AsNoTracking().Where(a => a.PanelId == panelId).OrderBy(a => a.Id).ToListAsync();
+        var benchmarks = await new Features.Benchmarks.PanelBenchmarks(db).BuildAsync(panelId);
+        var relations = Features.Relations.PanelRelations.OnConsensus(await db.Relations.AsNoTracking().Where(r => r.PanelId == panelId).OrderBy(r => r.Id).ToListAsync(), view);
         return Render(new DossierData(panel, view, rounds, members.Count,
             responders.GroupBy(r => r.RoundId).ToDictionary(g => g.Key, g => g.Count()), audit,
-            members.Select(m => m.Expert?.DeclaredInterests).ToList(), now));
+            members.Select(m => m.Expert?.DeclaredInterests).ToList(), now, benchmarks, relations));
     }
 
     /// <summary>Everything a dossier shows, loaded; <see cref="Render"/> does no I/O.</summary>
     public sealed record DossierData(
         Panel Panel, PanelResultsView View, IReadOnlyList<Round> Rounds, int Members, IReadOnlyDictionary<int, int> RespondedByRoundId,
-        IReadOnlyList<AuditEvent> Audit, IReadOnlyList<string?> DeclaredInterests, DateTime Now);
+        IReadOnlyList<AuditEvent> Audit, IReadOnlyList<string?> DeclaredInterests, DateTime Now,
+        Features.Benchmarks.PanelBenchmarksDto? Benchmarks = null, IReadOnlyList<Features.Relations.RelationConsensusCheck>? Relations = null);
 
     public static byte[] Render(DossierData d)
     {
@@ -56,8 +59,9 @@ public static partial class PanelDossier
         Cover(pdf, d.Panel, d.View, d.Rounds, d.Members, d.RespondedByRoundId, d.Now);
         foreach (var q in d.View.Questions)
         {
-            Question(pdf, q, d.Rounds);
+            Question(pdf, q, d.Rounds, d.Benchmarks?.Questions.FirstOrDefault(b => b.QuestionId == q.QuestionId));
         }
+        BenchmarkReport.Relations(pdf, d.Relations);
         Appendix(pdf, d.Panel);
         AuditTrail(pdf, d.Audit);
         Interests(pdf, d.DeclaredInterests);
@@ -89,12 +93,12 @@ public static partial class PanelDossier
         pdf.Paragraph(ConsensusExport.Caution, 9.5, bold: true);
     }
 
-    private static void Question(PdfReport pdf, QuestionResult q, IReadOnlyList<Round> rounds)
+    private static void Question(PdfReport pdf, QuestionResult q, IReadOnlyList<Round> rounds, Features.Benchmarks.QuestionBenchmarksDto? benchmarks)
     {
         pdf.NewPage();
         pdf.Heading($"{q.Label} ({q.Unit})", 2);
         pdf.Paragraph($"Response format: {(q.Format == ResponseFormat.Range ? "a range (P10, P50, P90)" : "a single value")}. Stop suggestion: {q.SuggestionText}", 9);
-        pdf.Chart(ChartOf(q));
+        pdf.Chart(ChartOf(q, BenchmarkReport.ChartLayer(benchmarks)));
 
         var numbers = new HashSet<int> { 1, 2, 3, 4, 5, 6, 7, 8, 9 };
         foreach (var r in rounds)
@@ -132,6 +136,7 @@ public static partial class PanelDossier
                     ConsensusExport.BandOf(q.Format), N(p.Consensus.N), Words.Method(p.Consensus.Method)]).ToList(),
                 [1, 1.4, 1.4, 1.4, 1, 0.6, 1.6], new HashSet<int> { 1, 2, 3, 5 });
         }
+        BenchmarkReport.Table(pdf, benchmarks);
         if (q.Rationales.Count > 0)
         {
             pdf.Paragraph($"Rationales from the last closed round ({Math.Min(RationalesPerQuestion, q.Rationales.Count)} of {q.Rationales.Count}, unattributed, in alphabetical order)", 9.5, bold: true);
@@ -143,7 +148,7 @@ public static partial class PanelDossier
     }
 
     /// <summary>The question's chart: the reference history, each round's median with its Q1-Q3 band, and the consensus with its band.</summary>
-    public static ChartModel ChartOf(QuestionResult q)
+    public static ChartModel ChartOf(QuestionResult q, IReadOnlyList<ChartSeries>? layers = null)
     {
         var series = new List<ChartSeries>();
         if (q.Reference.Count > 0)
@@ -169,6 +174,7 @@ public static partial class PanelDossier
             series.Add(new ChartSeries($"Consensus and {ConsensusExport.BandOf(q.Format)} band", SeriesKind.Band, "#d95f02", consensus));
             series.Add(new ChartSeries("Consensus path", SeriesKind.Line, "#d95f02", consensus.Select(c => c with { Low = null, High = null }).ToList(), Dashed: true));
         }
+        series.AddRange(layers ?? []);
         return new ChartModel(q.Label, q.Unit, q.Decimals, series);
     }
 

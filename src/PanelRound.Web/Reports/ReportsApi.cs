@@ -13,9 +13,10 @@ public static class ReportsApi
     {
         var g = app.MapGroup("/api/panels").WithTags("Exports").RequireAuthorization(AuthSetup.StaffPolicy);
         g.MapGet("/{id:int}/consensus.csv", ConsensusCsv).WithName("GetConsensusCsv")
-            .WithSummary("The published consensus as CSV: panel_id,panel,question_id,question,indicator,unit,format,period,consensus,low,high,band,n,method,round,published_at.");
+            .WithSummary("The published consensus as CSV: panel_id,panel,question_id,question,indicator,unit,format,period,consensus,low,high,band,n,method,round,published_at. "
+                + "With include=benchmarks,derived (either or both): the benchmark paths and derived series as extra rows and a last column source (consensus, benchmark:<method>, derived).");
         g.MapGet("/{id:int}/consensus.xlsx", ConsensusXlsx).WithName("GetConsensusXlsx")
-            .WithSummary("The published consensus as a workbook: the tidy sheet, one sheet per question laid out by period, and the method.");
+            .WithSummary("The published consensus as a workbook: the tidy sheet, one sheet per question laid out by period, and the method; include= as for the CSV.");
         g.MapGet("/{id:int}/report.pdf", Dossier).WithName("GetPanelDossier")
             .WithSummary("The panel's audit-ready dossier (PDF): method, rounds, consensus, rationales, audit trail.");
         var sc = app.MapGroup("/api/scorecard").WithTags("Exports").RequireAuthorization(AuthSetup.StaffPolicy);
@@ -42,16 +43,38 @@ public static class ReportsApi
     public const string CsvType = "text/csv; charset=utf-8";
     public const string XlsxType = "application/vnd.openxmlformats-officedocument.spreadsheetml.sheet";
 
-    public static async Task<Results<FileContentHttpResult, ProblemHttpResult>> ConsensusCsv(int id, PanelRoundDbContext db)
+    public static async Task<Results<FileContentHttpResult, ValidationProblem, ProblemHttpResult>> ConsensusCsv(int id, string? include, PanelRoundDbContext db, PanelResults results)
     {
+        var errors = new FieldErrors();
+        if (!ConsensusExtras.TryParseInclude(include, errors, out var benchmarks, out var derived))
+        {
+            return TypedResults.ValidationProblem(errors.ToDictionary(), title: "The input has errors.");
+        }
         var loaded = await ConsensusExport.LoadAsync(db, id);
-        return Check(id, loaded) ?? (Results<FileContentHttpResult, ProblemHttpResult>)TypedResults.File(ConsensusExport.ToCsv(loaded!.Value.Rows), CsvType, $"consensus-panel-{id}.csv");
+        if (Check(id, loaded) is { } problem)
+        {
+            return problem;
+        }
+        var bytes = include is null ? ConsensusExport.ToCsv(loaded!.Value.Rows)
+            : ConsensusExport.ToCsv(await ConsensusExtras.ExtendAsync(db, results, loaded!.Value.Panel, loaded.Value.Rows, benchmarks, derived), withSource: true);
+        return TypedResults.File(bytes, CsvType, $"consensus-panel-{id}.csv");
     }
 
-    public static async Task<Results<FileContentHttpResult, ProblemHttpResult>> ConsensusXlsx(int id, PanelRoundDbContext db)
+    public static async Task<Results<FileContentHttpResult, ValidationProblem, ProblemHttpResult>> ConsensusXlsx(int id, string? include, PanelRoundDbContext db, PanelResults results)
     {
+        var errors = new FieldErrors();
+        if (!ConsensusExtras.TryParseInclude(include, errors, out var benchmarks, out var derived))
+        {
+            return TypedResults.ValidationProblem(errors.ToDictionary(), title: "The input has errors.");
+        }
         var loaded = await ConsensusExport.LoadAsync(db, id);
-        return Check(id, loaded) ?? (Results<FileContentHttpResult, ProblemHttpResult>)TypedResults.File(ConsensusExport.ToXlsx(loaded!.Value.Panel, loaded.Value.Rows), XlsxType, $"consensus-panel-{id}.xlsx");
+        if (Check(id, loaded) is { } problem)
+        {
+            return problem;
+        }
+        var bytes = include is null ? ConsensusExport.ToXlsx(loaded!.Value.Panel, loaded.Value.Rows)
+            : ConsensusExport.ToXlsx(loaded!.Value.Panel, await ConsensusExtras.ExtendAsync(db, results, loaded.Value.Panel, loaded.Value.Rows, benchmarks, derived), withSource: true);
+        return TypedResults.File(bytes, XlsxType, $"consensus-panel-{id}.xlsx");
     }
 
     public static async Task<Results<FileContentHttpResult, ProblemHttpResult>> Dossier(int id, PanelRoundDbContext db, PanelResults results, TimeProvider clock)

@@ -13,10 +13,12 @@ public sealed record QuestionDto(int Id, int IndicatorId, int Order, string Labe
 /// <summary>A panel's settings as the API shows them (rules and weighting by name, shares as fractions).</summary>
 public sealed record PanelSettingsDto(
     OutlierRuleSetting OutlierRule, double TrimFraction, double ConsensusThreshold, double StabilityThreshold, int RoundCap, int MinimumGroupSize,
-    bool ShowRationales, bool OutliersMustJustify, ConsensusWeighting Weighting)
+    bool ShowRationales, bool OutliersMustJustify, ConsensusWeighting Weighting,
+    bool ShowBenchmarkToExperts = false, string ExpertBenchmark = "naive", int BenchmarkWindow = 3, double RelationTolerance = 0.05)
 {
     public static PanelSettingsDto From(PanelSettings s) => new(
-        s.OutlierRule, s.TrimFraction, s.ConsensusThreshold, s.StabilityThreshold, s.RoundCap, s.MinimumGroupSize, s.ShowRationales, s.OutliersMustJustify, s.Weighting);
+        s.OutlierRule, s.TrimFraction, s.ConsensusThreshold, s.StabilityThreshold, s.RoundCap, s.MinimumGroupSize, s.ShowRationales, s.OutliersMustJustify, s.Weighting,
+        s.ShowBenchmarkToExperts, s.ExpertBenchmark, s.BenchmarkWindow, s.RelationTolerance);
 }
 
 public sealed record PanelDto(int Id, string Title, string Brief, DateOnly StartsOn, IReadOnlyList<string> TargetPeriods, string State,

@@ -1,4 +1,5 @@
 using PanelRound.Data.Entities;
+using PanelRound.Web.Features.Benchmarks;
 using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Features.Panels;
@@ -6,7 +7,8 @@ namespace PanelRound.Web.Features.Panels;
 /// <summary>A panel's settings as the API and the form send them: names for the rules, shares as fractions; null keeps the current value.</summary>
 public sealed record PanelSettingsInput(
     string? OutlierRule = null, double? TrimFraction = null, double? ConsensusThreshold = null, double? StabilityThreshold = null,
-    int? RoundCap = null, int? MinimumGroupSize = null, bool? ShowRationales = null, bool? OutliersMustJustify = null, string? Weighting = null);
+    int? RoundCap = null, int? MinimumGroupSize = null, bool? ShowRationales = null, bool? OutliersMustJustify = null, string? Weighting = null,
+    bool? ShowBenchmarkToExperts = null, string? ExpertBenchmark = null, int? BenchmarkWindow = null, double? RelationTolerance = null);
 
 /// <summary>
 /// Reads a panel's settings from their input into the stored settings: each given value within
@@ -66,6 +68,7 @@ public static class PanelSettingsRules
                 settings.MinimumGroupSize = min;
             }
         }
+        BenchmarkSettingsRules.Apply(settings, x, errors);
         settings.ShowRationales = x.ShowRationales ?? settings.ShowRationales;
         settings.OutliersMustJustify = x.OutliersMustJustify ?? settings.OutliersMustJustify;
     }

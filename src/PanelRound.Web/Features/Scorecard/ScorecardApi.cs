@@ -37,7 +37,18 @@ public static class ScorecardApi
 
     public sealed record ScorecardDto(
         string? Indicator, string? Period, int Panels, IReadOnlyList<ScorecardExpertDto> Experts, ScorecardSummaryDto Consensus, ScorecardSummaryDto Naive,
-        DateOnly WeightsKnownBefore, double PseudoForecasts, string Caution);
+        DateOnly WeightsKnownBefore, double PseudoForecasts, string Caution, BenchmarkComparisonDto? Benchmarks = null);
+
+    /// <summary>One benchmark scored like an expert; <c>comparedScaledMae</c> is its scaled MAE on the consensus's question-periods (null unless it covers all).</summary>
+    public sealed record BenchmarkScoreDto(string Benchmark, ScorecardSummaryDto Summary, double? ComparedScaledMae);
+
+    /// <summary>The consensus against the best benchmark on the same <c>n</c> question-periods: <c>skillVsBest</c> = 1 − consensus scaled MAE / best scaled MAE.</summary>
+    public sealed record BenchmarkComparisonDto(IReadOnlyList<BenchmarkScoreDto> Benchmarks, int N, double? ConsensusScaledMae, string? Best, double? BestScaledMae, double? SkillVsBest)
+    {
+        public static BenchmarkComparisonDto From(Core.Scoring.BenchmarkComparison c) => new(
+            c.Benchmarks.Select(b => new BenchmarkScoreDto(b.Key, ScorecardSummaryDto.From(b.Summary), F(b.ComparedScaledMae))).ToList(),
+            c.N, F(c.ConsensusScaledMae), c.Best, F(c.BestScaledMae), F(c.SkillVsBest));
+    }
 
     /// <summary>One panel's backtest: <c>hasHistory</c> false means nobody had a record before it closed, so there is no weighted result (null).</summary>
     public sealed record BacktestPanelDto(
@@ -75,7 +86,8 @@ public static class ScorecardApi
                 l.Score.Ranked, l.Score.Rank, l.PointWeight.N, F(l.PointWeight.Weight), l.RangeWeight?.N, F(l.RangeWeight?.Weight));
         }).ToList();
         return TypedResults.Ok(new ScorecardDto(view.Filter.Indicator, view.Filter.Period, view.Panels, experts,
-            ScorecardSummaryDto.From(view.Consensus), ScorecardSummaryDto.From(view.Naive), view.WeightsKnownBefore, view.PseudoForecasts, Caution));
+            ScorecardSummaryDto.From(view.Consensus), ScorecardSummaryDto.From(view.Naive), view.WeightsKnownBefore, view.PseudoForecasts, Caution,
+            view.Benchmarks is null ? null : BenchmarkComparisonDto.From(view.Benchmarks)));
     }
 
     public static async Task<Ok<BacktestDto>> GetBacktest(ScorecardService scorecard)

@@ -4,6 +4,7 @@ using PanelRound.Core.Domain;
 using PanelRound.Core.Scoring;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
+using PanelRound.Web.Features.Benchmarks;
 using PanelRound.Web.Features.Results;
 using PanelRound.Web.Features.Rounds;
 
@@ -33,7 +34,7 @@ public sealed record ScorecardLine(
 public sealed record ScorecardView(
     ScorecardFilter Filter, IReadOnlyList<ScorecardLine> Experts, ErrorSummary Consensus, ErrorSummary Naive,
     IReadOnlyList<string> Indicators, IReadOnlyList<string> Periods, int Panels, DateOnly WeightsKnownBefore, double PseudoForecasts,
-    IReadOnlyList<ScoredPanel> ConcludedPanels);
+    IReadOnlyList<ScoredPanel> ConcludedPanels, BenchmarkComparison? Benchmarks = null);
 
 /// <summary>One forecast of an expert against its outcome.</summary>
 public sealed record ForecastPoint(
@@ -52,7 +53,8 @@ public sealed record PanelTargetLine(
     double? ConsensusError, double? NaiveError, double? ScaledConsensusError, double? ScaledNaiveError);
 
 public sealed record PanelScorecardView(
-    ScoredPanel Panel, IReadOnlyList<PanelTargetLine> Targets, ErrorSummary Consensus, ErrorSummary Naive, ErrorSummary Experts);
+    ScoredPanel Panel, IReadOnlyList<PanelTargetLine> Targets, ErrorSummary Consensus, ErrorSummary Naive, ErrorSummary Experts,
+    BenchmarkComparison? Benchmarks = null);
 
 /// <summary>One panel's backtest line.</summary>
 /// <param name="Panel">The panel.</param>
@@ -80,7 +82,7 @@ public sealed record ConsensusComparison(
 /// <summary>The reviewer's views of scores: the scorecard, an expert's record, a panel's record, the backtest, equal against weighted consensus.</summary>
 public sealed class ScorecardService(
     PanelRoundDbContext db, ScoringDataLoader scoring, TrackRecordWeightsService weights, ConsensusPublisher publisher,
-    IOptions<ScoringOptions> options, TimeProvider clock)
+    IOptions<ScoringOptions> options, TimeProvider clock, BenchmarkScoring benchmarkScoring)
 {
     private double K => options.Value.PseudoForecasts;
 
@@ -108,7 +110,8 @@ public sealed class ScorecardService(
         return new ScorecardView(
             filter, lines, Core.Scoring.Scorecard.ForConsensus(consensus), Core.Scoring.Scorecard.ForNaiveBaseline(items), indicators, periods,
             items.Select(i => i.PanelKey).Distinct(StringComparer.Ordinal).Count(), today, K,
-            [.. data.Panels.Values.OrderByDescending(p => p.ClosedOn)]);
+            [.. data.Panels.Values.OrderByDescending(p => p.ClosedOn)],
+            BenchmarkSkill.Compare(consensus, [.. (await benchmarkScoring.ItemsAsync(data)).Where(i => filter.Matches(i, data))]));
     }
 
     public async Task<ExpertScorecardView?> ExpertAsync(int expertId)
@@ -171,10 +174,12 @@ public sealed class ScorecardService(
             }
         }
         var own = data.ExpertItems.Where(i => i.PanelKey == panel.Key && i.IsFinalRound).ToList();
+        var consensusItems = data.ConsensusItems.Where(i => i.PanelKey == panel.Key).ToList();
         return new PanelScorecardView(panel, targets,
-            Core.Scoring.Scorecard.ForConsensus([.. data.ConsensusItems.Where(i => i.PanelKey == panel.Key)]),
+            Core.Scoring.Scorecard.ForConsensus(consensusItems),
             Core.Scoring.Scorecard.ForNaiveBaseline(own),
-            ForecastErrors.Summarise(own));
+            ForecastErrors.Summarise(own),
+            BenchmarkSkill.Compare(consensusItems, [.. (await benchmarkScoring.ItemsAsync(data)).Where(i => i.PanelKey == panel.Key)]));
     }
 
     /// <summary>

@@ -4,12 +4,14 @@ using Microsoft.AspNetCore.Mvc.RazorPages;
 using PanelRound.Core.Domain;
 using PanelRound.Data;
 using PanelRound.Web.Features.Answers;
+using PanelRound.Web.Features.Benchmarks;
+using PanelRound.Web.Features.Relations;
 using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Pages.Answer;
 
 /// <summary>The expert's page behind the personal link's cookie: the brief, the questions, feedback and the answer form.</summary>
-public class IndexModel(PanelRoundDbContext db, ExpertAnswers answers) : PageModel
+public class IndexModel(PanelRoundDbContext db, ExpertAnswers answers, ExpertBenchmarkLine benchmarkLine, PanelRelations relations) : PageModel
 {
     /// <summary>One period's inputs as typed: numbers are read by <see cref="Numbers.TryParseEntry"/> with the chosen separator, never by the server's culture.</summary>
     public sealed class PeriodForm
@@ -49,6 +51,18 @@ public class IndexModel(PanelRoundDbContext db, ExpertAnswers answers) : PageMod
 
     public IReadOnlyList<string> Warnings { get; private set; } = [];
 
+    /// <summary>The panel's chosen benchmark per question, when the panel shows one to experts; empty otherwise.</summary>
+    public IReadOnlyDictionary<int, ExpertBenchmark> BenchmarkLines { get; private set; } = new Dictionary<int, ExpertBenchmark>();
+
+    /// <summary>Notes on this expert's own answers only (relations between questions), from round 2 on.</summary>
+    public IReadOnlyList<PrivateRelationNote> PrivateNotes { get; private set; } = [];
+
+    private async Task LoadExtrasAsync(int membershipId)
+    {
+        BenchmarkLines = await benchmarkLine.ForPanelAsync(Form.PanelId);
+        PrivateNotes = await relations.PrivateNotesAsync(membershipId);
+    }
+
     [TempData]
     public string? Saved { get; set; }
 
@@ -65,6 +79,7 @@ public class IndexModel(PanelRoundDbContext db, ExpertAnswers answers) : PageMod
             return RedirectToPage("LinkNeeded");
         }
         Form = await answers.GetFormAsync(m.Id);
+        await LoadExtrasAsync(m.Id);
         Warnings = SavedWarnings is { Length: > 0 } w ? w.Split('\n') : [];
         Decimals = Decimals is "comma" or "point" ? Decimals : DefaultSeparator(Request.Headers.AcceptLanguage.ToString());
         return Page();
@@ -125,6 +140,7 @@ public class IndexModel(PanelRoundDbContext db, ExpertAnswers answers) : PageMod
             Conflict = result.Kind == ResultKind.Conflict ? result.Message : null;
         }
         Form = await answers.GetFormAsync(m.Id);
+        await LoadExtrasAsync(m.Id);
         return Page();
     }
 

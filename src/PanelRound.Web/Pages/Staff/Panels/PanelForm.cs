@@ -43,11 +43,20 @@ public sealed class PanelForm
         public bool OutliersMustJustify { get; set; } = Defaults.OutliersMustJustify;
 
         public ConsensusWeighting Weighting { get; set; } = Defaults.Weighting;
+
+        public bool ShowBenchmarkToExperts { get; set; } = Defaults.ShowBenchmarkToExperts;
+
+        public string ExpertBenchmark { get; set; } = Defaults.ExpertBenchmark;
+
+        public int BenchmarkWindow { get; set; } = Defaults.BenchmarkWindow;
+
+        public double RelationTolerance { get; set; } = Defaults.RelationTolerance;
     }
 
     public PanelInput ToInput() => new(Title, Brief, StartsOn, TargetPeriods, new PanelSettingsInput(
         Settings.OutlierRule.ToString(), Settings.TrimFraction, Settings.ConsensusThreshold, Settings.StabilityThreshold,
-        Settings.RoundCap, Settings.MinimumGroupSize, Settings.ShowRationales, Settings.OutliersMustJustify, Settings.Weighting.ToString()));
+        Settings.RoundCap, Settings.MinimumGroupSize, Settings.ShowRationales, Settings.OutliersMustJustify, Settings.Weighting.ToString(),
+        Settings.ShowBenchmarkToExperts, Settings.ExpertBenchmark, Settings.BenchmarkWindow, Settings.RelationTolerance));
 
     public static PanelForm From(Panel p) => new()
     {
@@ -57,6 +66,8 @@ public sealed class PanelForm
             OutlierRule = p.Settings.OutlierRule, TrimFraction = p.Settings.TrimFraction, ConsensusThreshold = p.Settings.ConsensusThreshold,
             StabilityThreshold = p.Settings.StabilityThreshold, RoundCap = p.Settings.RoundCap, MinimumGroupSize = p.Settings.MinimumGroupSize,
             ShowRationales = p.Settings.ShowRationales, OutliersMustJustify = p.Settings.OutliersMustJustify, Weighting = p.Settings.Weighting,
+            ShowBenchmarkToExperts = p.Settings.ShowBenchmarkToExperts, ExpertBenchmark = p.Settings.ExpertBenchmark,
+            BenchmarkWindow = p.Settings.BenchmarkWindow, RelationTolerance = p.Settings.RelationTolerance,
         },
     };
 }

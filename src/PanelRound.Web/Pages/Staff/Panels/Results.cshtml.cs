@@ -1,12 +1,14 @@
 using Microsoft.AspNetCore.Mvc;
 using Microsoft.AspNetCore.Mvc.RazorPages;
+using PanelRound.Web.Features.Benchmarks;
+using PanelRound.Web.Features.Relations;
 using PanelRound.Web.Features.Results;
 using PanelRound.Web.Features.Scorecard;
 
 namespace PanelRound.Web.Pages.Staff.Panels;
 
 /// <summary>Results per question for staff: distributions per round, convergence, stability, outliers by panel code, stop suggestion.</summary>
-public class ResultsModel(PanelResults results, ScorecardService scorecard) : PageModel
+public class ResultsModel(PanelResults results, ScorecardService scorecard, PanelBenchmarks benchmarks, PanelRelations relations) : PageModel
 {
     [BindProperty(SupportsGet = true)]
     public int Id { get; set; }
@@ -15,6 +17,17 @@ public class ResultsModel(PanelResults results, ScorecardService scorecard) : Pa
 
     /// <summary>Equal-weight and track-record consensus of the last closed round, side by side; null before any round closed.</summary>
     public ConsensusComparison? Comparison { get; private set; }
+
+    /// <summary>The statistical benchmarks per question.</summary>
+    public PanelBenchmarksDto? Benchmarks { get; private set; }
+
+    /// <summary>The relations checked on the consensus, per period.</summary>
+    public IReadOnlyList<RelationConsensusCheck> Relations { get; private set; } = [];
+
+    /// <summary>The relations checked on each expert's own answers, by panel code.</summary>
+    public IReadOnlyList<(RelationDto Relation, IReadOnlyList<RelationCodeCheck> Codes)> RelationsByCode { get; private set; } = [];
+
+    public QuestionBenchmarksDto? BenchmarksOf(int questionId) => Benchmarks?.Questions.FirstOrDefault(q => q.QuestionId == questionId);
 
     public static readonly string[] RoundColours = ["#1f77b4", "#ff7f0e", "#9467bd", "#8c564b", "#e377c2"];
 
@@ -27,6 +40,9 @@ public class ResultsModel(PanelResults results, ScorecardService scorecard) : Pa
         }
         View = view;
         Comparison = await scorecard.CompareAsync(Id);
+        Benchmarks = await benchmarks.BuildAsync(Id);
+        Relations = PanelRelations.OnConsensus(await relations.ListAsync(Id) ?? [], view);
+        RelationsByCode = await relations.ByPanelCodeAsync(Id);
         return Page();
     }
 }
