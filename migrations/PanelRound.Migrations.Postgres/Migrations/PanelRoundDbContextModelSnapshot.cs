@@ -424,6 +424,49 @@ namespace PanelRound.Migrations.Postgres.Migrations
                     b.ToTable("Experts");
                 });
 
+            modelBuilder.Entity("PanelRound.Data.Entities.FrozenFeedback", b =>
+                {
+                    b.Property<long>("Id")
+                        .ValueGeneratedOnAdd()
+                        .HasColumnType("bigint");
+
+                    NpgsqlPropertyBuilderExtensions.UseIdentityByDefaultColumn(b.Property<long>("Id"));
+
+                    b.Property<int>("N")
+                        .HasColumnType("integer");
+
+                    b.Property<string>("Period")
+                        .IsRequired()
+                        .HasMaxLength(10)
+                        .HasColumnType("character varying(10)");
+
+                    b.Property<int>("QuestionId")
+                        .HasColumnType("integer");
+
+                    b.Property<string>("RationalesJson")
+                        .IsRequired()
+                        .HasColumnType("text");
+
+                    b.Property<int>("RoundId")
+                        .HasColumnType("integer");
+
+                    b.Property<string>("StatisticsJson")
+                        .IsRequired()
+                        .HasColumnType("text");
+
+                    b.Property<bool>("Withheld")
+                        .HasColumnType("boolean");
+
+                    b.HasKey("Id");
+
+                    b.HasIndex("QuestionId");
+
+                    b.HasIndex("RoundId", "QuestionId", "Period")
+                        .IsUnique();
+
+                    b.ToTable("RoundFeedback", (string)null);
+                });
+
             modelBuilder.Entity("PanelRound.Data.Entities.Indicator", b =>
                 {
                     b.Property<int>("Id")
@@ -581,6 +624,15 @@ namespace PanelRound.Migrations.Postgres.Migrations
                         {
                             b1.IsRequired();
 
+                            b1.Property<double?>("CalibrationCutoff")
+                                .HasColumnType("double precision");
+
+                            b1.Property<double>("CalibrationOvershoot")
+                                .HasColumnType("double precision");
+
+                            b1.Property<bool>("CalibrationUsesFirstRound")
+                                .HasColumnType("boolean");
+
                             b1.Property<double>("ConsensusThreshold")
                                 .HasColumnType("double precision");
 
@@ -696,10 +748,16 @@ namespace PanelRound.Migrations.Postgres.Migrations
                     b.Property<int>("IndicatorId")
                         .HasColumnType("integer");
 
+                    b.Property<bool>("IsCalibration")
+                        .HasColumnType("boolean");
+
                     b.Property<string>("Label")
                         .IsRequired()
                         .HasMaxLength(300)
                         .HasColumnType("character varying(300)");
+
+                    b.Property<bool>("LogScale")
+                        .HasColumnType("boolean");
 
                     b.Property<int>("Order")
                         .HasColumnType("integer");
@@ -717,6 +775,12 @@ namespace PanelRound.Migrations.Postgres.Migrations
                         .IsRequired()
                         .HasMaxLength(500)
                         .HasColumnType("character varying(500)");
+
+                    b.Property<double?>("TrueValue")
+                        .HasColumnType("double precision");
+
+                    b.Property<DateTime?>("TrueValueRecordedAt")
+                        .HasColumnType("timestamp with time zone");
 
                     b.HasKey("Id");
 
@@ -767,49 +831,6 @@ namespace PanelRound.Migrations.Postgres.Migrations
                         .IsUnique();
 
                     b.ToTable("Rounds");
-                });
-
-            modelBuilder.Entity("PanelRound.Data.Entities.RoundFeedback", b =>
-                {
-                    b.Property<long>("Id")
-                        .ValueGeneratedOnAdd()
-                        .HasColumnType("bigint");
-
-                    NpgsqlPropertyBuilderExtensions.UseIdentityByDefaultColumn(b.Property<long>("Id"));
-
-                    b.Property<int>("N")
-                        .HasColumnType("integer");
-
-                    b.Property<string>("Period")
-                        .IsRequired()
-                        .HasMaxLength(10)
-                        .HasColumnType("character varying(10)");
-
-                    b.Property<int>("QuestionId")
-                        .HasColumnType("integer");
-
-                    b.Property<string>("RationalesJson")
-                        .IsRequired()
-                        .HasColumnType("text");
-
-                    b.Property<int>("RoundId")
-                        .HasColumnType("integer");
-
-                    b.Property<string>("StatisticsJson")
-                        .IsRequired()
-                        .HasColumnType("text");
-
-                    b.Property<bool>("Withheld")
-                        .HasColumnType("boolean");
-
-                    b.HasKey("Id");
-
-                    b.HasIndex("QuestionId");
-
-                    b.HasIndex("RoundId", "QuestionId", "Period")
-                        .IsUnique();
-
-                    b.ToTable("RoundFeedback");
                 });
 
             modelBuilder.Entity("PanelRound.Data.Entities.StaffUser", b =>
@@ -973,6 +994,23 @@ namespace PanelRound.Migrations.Postgres.Migrations
                     b.Navigation("Membership");
                 });
 
+            modelBuilder.Entity("PanelRound.Data.Entities.FrozenFeedback", b =>
+                {
+                    b.HasOne("PanelRound.Data.Entities.Question", null)
+                        .WithMany()
+                        .HasForeignKey("QuestionId")
+                        .OnDelete(DeleteBehavior.Restrict)
+                        .IsRequired();
+
+                    b.HasOne("PanelRound.Data.Entities.Round", "Round")
+                        .WithMany("Feedback")
+                        .HasForeignKey("RoundId")
+                        .OnDelete(DeleteBehavior.Cascade)
+                        .IsRequired();
+
+                    b.Navigation("Round");
+                });
+
             modelBuilder.Entity("PanelRound.Data.Entities.Observation", b =>
                 {
                     b.HasOne("PanelRound.Data.Entities.Indicator", "Indicator")
@@ -1031,23 +1069,6 @@ namespace PanelRound.Migrations.Postgres.Migrations
                         .IsRequired();
 
                     b.Navigation("Panel");
-                });
-
-            modelBuilder.Entity("PanelRound.Data.Entities.RoundFeedback", b =>
-                {
-                    b.HasOne("PanelRound.Data.Entities.Question", null)
-                        .WithMany()
-                        .HasForeignKey("QuestionId")
-                        .OnDelete(DeleteBehavior.Restrict)
-                        .IsRequired();
-
-                    b.HasOne("PanelRound.Data.Entities.Round", "Round")
-                        .WithMany("Feedback")
-                        .HasForeignKey("RoundId")
-                        .OnDelete(DeleteBehavior.Cascade)
-                        .IsRequired();
-
-                    b.Navigation("Round");
                 });
 
             modelBuilder.Entity("PanelRound.Data.Entities.Expert", b =>

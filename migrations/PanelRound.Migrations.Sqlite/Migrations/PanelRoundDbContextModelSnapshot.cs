@@ -403,6 +403,47 @@ namespace PanelRound.Migrations.Sqlite.Migrations
                     b.ToTable("Experts");
                 });
 
+            modelBuilder.Entity("PanelRound.Data.Entities.FrozenFeedback", b =>
+                {
+                    b.Property<long>("Id")
+                        .ValueGeneratedOnAdd()
+                        .HasColumnType("INTEGER");
+
+                    b.Property<int>("N")
+                        .HasColumnType("INTEGER");
+
+                    b.Property<string>("Period")
+                        .IsRequired()
+                        .HasMaxLength(10)
+                        .HasColumnType("TEXT");
+
+                    b.Property<int>("QuestionId")
+                        .HasColumnType("INTEGER");
+
+                    b.Property<string>("RationalesJson")
+                        .IsRequired()
+                        .HasColumnType("TEXT");
+
+                    b.Property<int>("RoundId")
+                        .HasColumnType("INTEGER");
+
+                    b.Property<string>("StatisticsJson")
+                        .IsRequired()
+                        .HasColumnType("TEXT");
+
+                    b.Property<bool>("Withheld")
+                        .HasColumnType("INTEGER");
+
+                    b.HasKey("Id");
+
+                    b.HasIndex("QuestionId");
+
+                    b.HasIndex("RoundId", "QuestionId", "Period")
+                        .IsUnique();
+
+                    b.ToTable("RoundFeedback", (string)null);
+                });
+
             modelBuilder.Entity("PanelRound.Data.Entities.Indicator", b =>
                 {
                     b.Property<int>("Id")
@@ -554,6 +595,15 @@ namespace PanelRound.Migrations.Sqlite.Migrations
                         {
                             b1.IsRequired();
 
+                            b1.Property<double?>("CalibrationCutoff")
+                                .HasColumnType("REAL");
+
+                            b1.Property<double>("CalibrationOvershoot")
+                                .HasColumnType("REAL");
+
+                            b1.Property<bool>("CalibrationUsesFirstRound")
+                                .HasColumnType("INTEGER");
+
                             b1.Property<double>("ConsensusThreshold")
                                 .HasColumnType("REAL");
 
@@ -665,10 +715,16 @@ namespace PanelRound.Migrations.Sqlite.Migrations
                     b.Property<int>("IndicatorId")
                         .HasColumnType("INTEGER");
 
+                    b.Property<bool>("IsCalibration")
+                        .HasColumnType("INTEGER");
+
                     b.Property<string>("Label")
                         .IsRequired()
                         .HasMaxLength(300)
                         .HasColumnType("TEXT");
+
+                    b.Property<bool>("LogScale")
+                        .HasColumnType("INTEGER");
 
                     b.Property<int>("Order")
                         .HasColumnType("INTEGER");
@@ -685,6 +741,12 @@ namespace PanelRound.Migrations.Sqlite.Migrations
                     b.Property<string>("TargetPeriods")
                         .IsRequired()
                         .HasMaxLength(500)
+                        .HasColumnType("TEXT");
+
+                    b.Property<double?>("TrueValue")
+                        .HasColumnType("REAL");
+
+                    b.Property<DateTime?>("TrueValueRecordedAt")
                         .HasColumnType("TEXT");
 
                     b.HasKey("Id");
@@ -734,47 +796,6 @@ namespace PanelRound.Migrations.Sqlite.Migrations
                         .IsUnique();
 
                     b.ToTable("Rounds");
-                });
-
-            modelBuilder.Entity("PanelRound.Data.Entities.RoundFeedback", b =>
-                {
-                    b.Property<long>("Id")
-                        .ValueGeneratedOnAdd()
-                        .HasColumnType("INTEGER");
-
-                    b.Property<int>("N")
-                        .HasColumnType("INTEGER");
-
-                    b.Property<string>("Period")
-                        .IsRequired()
-                        .HasMaxLength(10)
-                        .HasColumnType("TEXT");
-
-                    b.Property<int>("QuestionId")
-                        .HasColumnType("INTEGER");
-
-                    b.Property<string>("RationalesJson")
-                        .IsRequired()
-                        .HasColumnType("TEXT");
-
-                    b.Property<int>("RoundId")
-                        .HasColumnType("INTEGER");
-
-                    b.Property<string>("StatisticsJson")
-                        .IsRequired()
-                        .HasColumnType("TEXT");
-
-                    b.Property<bool>("Withheld")
-                        .HasColumnType("INTEGER");
-
-                    b.HasKey("Id");
-
-                    b.HasIndex("QuestionId");
-
-                    b.HasIndex("RoundId", "QuestionId", "Period")
-                        .IsUnique();
-
-                    b.ToTable("RoundFeedback");
                 });
 
             modelBuilder.Entity("PanelRound.Data.Entities.StaffUser", b =>
@@ -938,6 +959,23 @@ namespace PanelRound.Migrations.Sqlite.Migrations
                     b.Navigation("Membership");
                 });
 
+            modelBuilder.Entity("PanelRound.Data.Entities.FrozenFeedback", b =>
+                {
+                    b.HasOne("PanelRound.Data.Entities.Question", null)
+                        .WithMany()
+                        .HasForeignKey("QuestionId")
+                        .OnDelete(DeleteBehavior.Restrict)
+                        .IsRequired();
+
+                    b.HasOne("PanelRound.Data.Entities.Round", "Round")
+                        .WithMany("Feedback")
+                        .HasForeignKey("RoundId")
+                        .OnDelete(DeleteBehavior.Cascade)
+                        .IsRequired();
+
+                    b.Navigation("Round");
+                });
+
             modelBuilder.Entity("PanelRound.Data.Entities.Observation", b =>
                 {
                     b.HasOne("PanelRound.Data.Entities.Indicator", "Indicator")
@@ -996,23 +1034,6 @@ namespace PanelRound.Migrations.Sqlite.Migrations
                         .IsRequired();
 
                     b.Navigation("Panel");
-                });
-
-            modelBuilder.Entity("PanelRound.Data.Entities.RoundFeedback", b =>
-                {
-                    b.HasOne("PanelRound.Data.Entities.Question", null)
-                        .WithMany()
-                        .HasForeignKey("QuestionId")
-                        .OnDelete(DeleteBehavior.Restrict)
-                        .IsRequired();
-
-                    b.HasOne("PanelRound.Data.Entities.Round", "Round")
-                        .WithMany("Feedback")
-                        .HasForeignKey("RoundId")
-                        .OnDelete(DeleteBehavior.Cascade)
-                        .IsRequired();
-
-                    b.Navigation("Round");
                 });
 
             modelBuilder.Entity("PanelRound.Data.Entities.Expert", b =>

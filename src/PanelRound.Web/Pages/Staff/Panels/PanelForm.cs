@@ -43,11 +43,19 @@ public sealed class PanelForm
         public bool OutliersMustJustify { get; set; } = Defaults.OutliersMustJustify;
 
         public ConsensusWeighting Weighting { get; set; } = Defaults.Weighting;
+
+        /// <summary>The fixed calibration cut-off; empty chooses the optimised one.</summary>
+        public double? CalibrationCutoff { get; set; } = Defaults.CalibrationCutoff;
+
+        public double CalibrationOvershoot { get; set; } = Defaults.CalibrationOvershoot;
+
+        public bool CalibrationUsesFirstRound { get; set; } = Defaults.CalibrationUsesFirstRound;
     }
 
     public PanelInput ToInput() => new(Title, Brief, StartsOn, TargetPeriods, new PanelSettingsInput(
         Settings.OutlierRule.ToString(), Settings.TrimFraction, Settings.ConsensusThreshold, Settings.StabilityThreshold,
-        Settings.RoundCap, Settings.MinimumGroupSize, Settings.ShowRationales, Settings.OutliersMustJustify, Settings.Weighting.ToString()));
+        Settings.RoundCap, Settings.MinimumGroupSize, Settings.ShowRationales, Settings.OutliersMustJustify, Settings.Weighting.ToString(),
+        Settings.CalibrationCutoff, Settings.CalibrationCutoff is null, Settings.CalibrationOvershoot, Settings.CalibrationUsesFirstRound));
 
     public static PanelForm From(Panel p) => new()
     {
@@ -57,6 +65,8 @@ public sealed class PanelForm
             OutlierRule = p.Settings.OutlierRule, TrimFraction = p.Settings.TrimFraction, ConsensusThreshold = p.Settings.ConsensusThreshold,
             StabilityThreshold = p.Settings.StabilityThreshold, RoundCap = p.Settings.RoundCap, MinimumGroupSize = p.Settings.MinimumGroupSize,
             ShowRationales = p.Settings.ShowRationales, OutliersMustJustify = p.Settings.OutliersMustJustify, Weighting = p.Settings.Weighting,
+            CalibrationCutoff = p.Settings.CalibrationCutoff, CalibrationOvershoot = p.Settings.CalibrationOvershoot,
+            CalibrationUsesFirstRound = p.Settings.CalibrationUsesFirstRound,
         },
     };
 }
