@@ -277,6 +277,30 @@ public abstract class CalibrationQuestionTests(IDatabaseFixture fixture) : Provi
         }
         Assert.Equal(0, await app.WithDbAsync(db => db.Panels.CountAsync()));
     }
+
+    [SkippableFact]
+    public async Task StaffPages_ResultsCalibrationAndCrossValidation_ShowTheFiguresByPanelCode()
+    {
+        var p = await CalibrationPanel.CreateAsync(await StartAsync(), calibrationQuestions: 8);
+        await p.AnswerAllAsync();
+        await p.CloseRoundAsync();
+        await p.RecordTruthsAsync(100);
+        var staff = await StaffPages.SignedInClientAsync(p.App, "Reviewer");
+
+        foreach (var page in new[] { $"/Staff/Panels/Results/{p.PanelId}", $"/Staff/Panels/Calibration/{p.PanelId}" })
+        {
+            var html = await staff.GetStringAsync(page);
+            Assert.Contains("id=\"calibration-scores\"", html, StringComparison.Ordinal);
+            Assert.Contains("id=\"calibration-consensus\"", html, StringComparison.Ordinal);
+            Assert.Contains("fewer than about 8–10 questions", html, StringComparison.Ordinal);
+            Assert.All(p.Members, m => Assert.Contains(m.Code, html, StringComparison.Ordinal));
+            Assert.DoesNotContain("Calibrated expert", html, StringComparison.Ordinal);
+        }
+        var cv = await staff.GetStringAsync($"/Staff/Panels/CrossValidation/{p.PanelId}?trainingSize=4");
+        Assert.Contains("70 splits (all of them)", cv, StringComparison.Ordinal);
+        var bad = await staff.GetStringAsync($"/Staff/Panels/CrossValidation/{p.PanelId}?trainingSize=9");
+        Assert.Contains("The training size is 1 to 7", bad, StringComparison.Ordinal);
+    }
 }
 
 [Collection(SqliteCollection.Name)]

@@ -13,7 +13,8 @@ namespace PanelRound.Web.Tests.Panels;
 public abstract class ApiJsonShapeTests(IDatabaseFixture fixture) : ProviderTests(fixture)
 {
     private static readonly string[] SettingsFields =
-        ["outlierRule", "trimFraction", "consensusThreshold", "stabilityThreshold", "roundCap", "minimumGroupSize", "showRationales", "outliersMustJustify", "weighting"];
+        ["outlierRule", "trimFraction", "consensusThreshold", "stabilityThreshold", "roundCap", "minimumGroupSize", "showRationales", "outliersMustJustify", "weighting",
+        "calibrationCutoff", "calibrationOvershoot", "calibrationUsesFirstRound"];
 
     private static readonly string[] ConsensusFields = ["id", "panelId", "questionId", "period", "value", "low", "high", "n", "method", "publishedAt"];
 

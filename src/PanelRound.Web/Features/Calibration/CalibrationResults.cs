@@ -47,7 +47,7 @@ public sealed record PanelCalibrationView(
 
 /// <summary>Equal, track-record and calibration-weighted consensus of one question-period.</summary>
 public sealed record CalibrationComparedTarget(
-    int QuestionId, string Question, string Period, string Format, ComparedValue Equal, ComparedValue? TrackRecord, ComparedValue Calibration);
+    int QuestionId, string Question, string Period, string Format, string Unit, int Decimals, ComparedValue Equal, ComparedValue? TrackRecord, ComparedValue Calibration);
 
 /// <summary>The three consensus of a panel's last closed round, side by side.</summary>
 public sealed record CalibrationComparison(int PanelId, int Round, string Weighting, IReadOnlyList<CalibrationComparedTarget> Targets);
@@ -135,7 +135,8 @@ public sealed class CalibrationResults(PanelRoundDbContext db, ScorecardService 
         var track = (known ?? await scorecard.CompareAsync(panelId))?.Targets.ToDictionary(t => (t.QuestionId, t.Period));
         var questions = panel.Questions.ToDictionary(q => q.Id);
         var targets = equal.Select(e => new CalibrationComparedTarget(
-            e.QuestionId, questions[e.QuestionId].Label, e.Period, questions[e.QuestionId].Format.ToString(), ComparedValue.Of(e),
+            e.QuestionId, questions[e.QuestionId].Label, e.Period, questions[e.QuestionId].Format.ToString(),
+            questions[e.QuestionId].Indicator!.UnitLabel, questions[e.QuestionId].Indicator!.Decimals, ComparedValue.Of(e),
             track?.GetValueOrDefault((e.QuestionId, e.Period))?.TrackRecord, ComparedValue.Of(calibrated[(e.QuestionId, e.Period)]))).ToList();
         return new CalibrationComparison(panelId, last.Number, panel.Settings.Weighting.ToString(), targets);
     }

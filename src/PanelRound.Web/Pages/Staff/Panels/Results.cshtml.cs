@@ -1,12 +1,13 @@
 using Microsoft.AspNetCore.Mvc;
 using Microsoft.AspNetCore.Mvc.RazorPages;
+using PanelRound.Web.Features.Calibration;
 using PanelRound.Web.Features.Results;
 using PanelRound.Web.Features.Scorecard;
 
 namespace PanelRound.Web.Pages.Staff.Panels;
 
 /// <summary>Results per question for staff: distributions per round, convergence, stability, outliers by panel code, stop suggestion.</summary>
-public class ResultsModel(PanelResults results, ScorecardService scorecard) : PageModel
+public class ResultsModel(PanelResults results, ScorecardService scorecard, CalibrationResults calibration) : PageModel
 {
     [BindProperty(SupportsGet = true)]
     public int Id { get; set; }
@@ -15,6 +16,14 @@ public class ResultsModel(PanelResults results, ScorecardService scorecard) : Pa
 
     /// <summary>Equal-weight and track-record consensus of the last closed round, side by side; null before any round closed.</summary>
     public ConsensusComparison? Comparison { get; private set; }
+
+    /// <summary>The calibration questions' scores and weights; null when the panel has none.</summary>
+    public PanelCalibrationView? Calibration { get; private set; }
+
+    /// <summary>Equal, track-record and calibration-weighted consensus side by side; null without calibration questions or a closed round.</summary>
+    public CalibrationComparison? CalibrationComparison { get; private set; }
+
+    public bool IsCalibration(int questionId) => Calibration?.Questions.Any(q => q.QuestionId == questionId) == true;
 
     public static readonly string[] RoundColours = ["#1f77b4", "#ff7f0e", "#9467bd", "#8c564b", "#e377c2"];
 
@@ -27,6 +36,11 @@ public class ResultsModel(PanelResults results, ScorecardService scorecard) : Pa
         }
         View = view;
         Comparison = await scorecard.CompareAsync(Id);
+        if (await calibration.ViewAsync(Id) is { Questions.Count: > 0 } cal)
+        {
+            Calibration = cal;
+            CalibrationComparison = await calibration.CompareAsync(Id, Comparison);
+        }
         return Page();
     }
 }
