@@ -301,6 +301,24 @@ public abstract class CalibrationQuestionTests(IDatabaseFixture fixture) : Provi
         var bad = await staff.GetStringAsync($"/Staff/Panels/CrossValidation/{p.PanelId}?trainingSize=9");
         Assert.Contains("The training size is 1 to 7", bad, StringComparison.Ordinal);
     }
+
+    [SkippableFact]
+    public async Task ExpertScorecard_AfterTruths_ShowsTheEarlyRecordApartWithItsDatesAndN()
+    {
+        var p = await CalibrationPanel.CreateAsync(await StartAsync());
+        await p.AnswerAllAsync();
+        await p.CloseRoundAsync();
+        var expertId = await p.App.WithDbAsync(db => db.Memberships.Where(m => m.Id == p.Members[1].MembershipId).Select(m => m.ExpertId).SingleAsync());
+        var reviewer = await StaffPages.SignedInClientAsync(p.App, "Reviewer");
+        Assert.Contains("No calibration question with a true value yet.", await reviewer.GetStringAsync($"/Staff/Scorecard/Expert/{expertId}"), StringComparison.Ordinal);
+
+        await p.RecordTruthsAsync(100);
+        var html = await reviewer.GetStringAsync($"/Staff/Scorecard/Expert/{expertId}");
+        var section = WebUtility.HtmlDecode(html[html.IndexOf("id=\"early-record\"", StringComparison.Ordinal)..]);
+        Assert.Contains($"<code>{p.Members[1].Code}</code>", section, StringComparison.Ordinal);
+        Assert.Contains("<td>3</td><td>0 · 0 · 3 · 0</td>", section, StringComparison.Ordinal);
+        Assert.Contains(DateTime.UtcNow.ToString("yyyy-MM-dd", System.Globalization.CultureInfo.InvariantCulture), section, StringComparison.Ordinal);
+    }
 }
 
 [Collection(SqliteCollection.Name)]
