@@ -319,6 +319,29 @@ public abstract class CalibrationQuestionTests(IDatabaseFixture fixture) : Provi
         Assert.Contains("<td>3</td><td>0 · 0 · 3 · 0</td>", section, StringComparison.Ordinal);
         Assert.Contains(DateTime.UtcNow.ToString("yyyy-MM-dd", System.Globalization.CultureInfo.InvariantCulture), section, StringComparison.Ordinal);
     }
+
+    // Anonymity: the calibration period's figure, once in the indicator's catalog (its period ended before the panel's start),
+    // must not reach the expert through the question's reference series.
+    [SkippableFact]
+    public async Task ExpertViews_CalibrationFigureInTheCatalog_IsNotInTheReferenceSeries()
+    {
+        var p = await CalibrationPanel.CreateAsync(await StartAsync());
+        var volume = await p.App.WithDbAsync(db => db.Indicators.Where(i => i.Key == "cal-volume").Select(i => i.Id).SingleAsync());
+        await p.Staff.PostOk($"/api/indicators/{volume}/observations", new[]
+        {
+            new { period = "2026Q1", value = 611.25, source = "registry" },
+            new { period = CalibrationPanel.CalibrationPeriod, value = 4321.5, source = "registry" },
+        }, HttpStatusCode.OK);
+
+        using var expert = p.App.Client().WithExpertToken(p.Members[0].Token);
+        var json = await (await expert.GetAsync($"/api/expert/panels/{p.PanelId}")).Content.ReadAsStringAsync();
+        var page = await (await StaffPages.ExpertClientAsync(p.App, p.Members[0].Token)).GetStringAsync("/expert");
+        foreach (var text in new[] { json, page })
+        {
+            Assert.DoesNotContain("4321", text, StringComparison.Ordinal);
+        }
+        Assert.Contains("611.25", json, StringComparison.Ordinal);
+    }
 }
 
 [Collection(SqliteCollection.Name)]
