@@ -80,7 +80,18 @@ public sealed class DemoInTheBrowserTests : IAsyncLifetime
         // A revision within the bounds is accepted.
         await expert.Locator("input[name='Answers[0].Periods[0].Value']").FillAsync("5555");
         await expert.Locator("textarea[name='Answers[0].Rationale']").FillAsync("Revised after reading the group's view on supply.");
+        // The panel asks for a rationale where an answer lies outside the group's usual range: the expert gives one everywhere else too.
+        foreach (var rationale in await expert.Locator("textarea[name$='.Rationale']").AllAsync())
+        {
+            if (string.IsNullOrEmpty(await rationale.InputValueAsync()))
+            {
+                await rationale.FillAsync("Kept from round 1: my view has not changed.");
+            }
+        }
         await expert.Locator("#submit-answers").ClickAsync();
+        await expert.ScreenshotAsync(new PageScreenshotOptions { Path = Path.Combine(Path.GetTempPath(), "panelround-expert-submitted.png"), FullPage = true });
+        var errors = await expert.Locator(".invalid-feedback:visible, .alert-danger:visible, .text-danger:visible").AllInnerTextsAsync();
+        Assert.True(errors.All(string.IsNullOrWhiteSpace), "The revision was refused: " + string.Join(" | ", errors));
         await Assertions.Expect(expert.Locator("#saved")).ToContainTextAsync("Submitted for round 2");
 
         // The facilitator signs in and reads the open round's results and tracker.

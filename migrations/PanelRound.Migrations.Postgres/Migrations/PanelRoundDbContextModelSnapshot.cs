@@ -627,6 +627,15 @@ namespace PanelRound.Migrations.Postgres.Migrations
                             b1.Property<int>("BenchmarkWindow")
                                 .HasColumnType("integer");
 
+                            b1.Property<double?>("CalibrationCutoff")
+                                .HasColumnType("double precision");
+
+                            b1.Property<double>("CalibrationOvershoot")
+                                .HasColumnType("double precision");
+
+                            b1.Property<bool>("CalibrationUsesFirstRound")
+                                .HasColumnType("boolean");
+
                             b1.Property<double>("ConsensusThreshold")
                                 .HasColumnType("double precision");
 
@@ -753,10 +762,16 @@ namespace PanelRound.Migrations.Postgres.Migrations
                     b.Property<int>("IndicatorId")
                         .HasColumnType("integer");
 
+                    b.Property<bool>("IsCalibration")
+                        .HasColumnType("boolean");
+
                     b.Property<string>("Label")
                         .IsRequired()
                         .HasMaxLength(300)
                         .HasColumnType("character varying(300)");
+
+                    b.Property<bool>("LogScale")
+                        .HasColumnType("boolean");
 
                     b.Property<int>("Order")
                         .HasColumnType("integer");
@@ -774,6 +789,12 @@ namespace PanelRound.Migrations.Postgres.Migrations
                         .IsRequired()
                         .HasMaxLength(500)
                         .HasColumnType("character varying(500)");
+
+                    b.Property<double?>("TrueValue")
+                        .HasColumnType("double precision");
+
+                    b.Property<DateTime?>("TrueValueRecordedAt")
+                        .HasColumnType("timestamp with time zone");
 
                     b.HasKey("Id");
 

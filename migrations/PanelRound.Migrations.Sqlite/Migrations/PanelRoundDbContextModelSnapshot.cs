@@ -598,6 +598,15 @@ namespace PanelRound.Migrations.Sqlite.Migrations
                             b1.Property<int>("BenchmarkWindow")
                                 .HasColumnType("INTEGER");
 
+                            b1.Property<double?>("CalibrationCutoff")
+                                .HasColumnType("REAL");
+
+                            b1.Property<double>("CalibrationOvershoot")
+                                .HasColumnType("REAL");
+
+                            b1.Property<bool>("CalibrationUsesFirstRound")
+                                .HasColumnType("INTEGER");
+
                             b1.Property<double>("ConsensusThreshold")
                                 .HasColumnType("REAL");
 
@@ -720,10 +729,16 @@ namespace PanelRound.Migrations.Sqlite.Migrations
                     b.Property<int>("IndicatorId")
                         .HasColumnType("INTEGER");
 
+                    b.Property<bool>("IsCalibration")
+                        .HasColumnType("INTEGER");
+
                     b.Property<string>("Label")
                         .IsRequired()
                         .HasMaxLength(300)
                         .HasColumnType("TEXT");
+
+                    b.Property<bool>("LogScale")
+                        .HasColumnType("INTEGER");
 
                     b.Property<int>("Order")
                         .HasColumnType("INTEGER");
@@ -740,6 +755,12 @@ namespace PanelRound.Migrations.Sqlite.Migrations
                     b.Property<string>("TargetPeriods")
                         .IsRequired()
                         .HasMaxLength(500)
+                        .HasColumnType("TEXT");
+
+                    b.Property<double?>("TrueValue")
+                        .HasColumnType("REAL");
+
+                    b.Property<DateTime?>("TrueValueRecordedAt")
                         .HasColumnType("TEXT");
 
                     b.HasKey("Id");

@@ -14,6 +14,12 @@ public enum ConsensusMethod
 
     /// <summary>Weighted trimmed quantile average of the experts' P10 / P50 / P90.</summary>
     WeightedQuantileAverage,
+
+    /// <summary>The calibration-weighted linear pool of the experts' minimum-information distributions, read at 10%, 50% and 90%.</summary>
+    CalibrationWeightedPool,
+
+    /// <summary>The calibration-weighted median of point answers; band = the weighted Q1 and Q3.</summary>
+    CalibrationWeightedMedian,
 }
 
 /// <summary>The panel's published forecast for one question-period, with its uncertainty band.</summary>

@@ -67,6 +67,9 @@ public enum ConsensusWeighting
 
     /// <summary>Weights from each expert's scored track record.</summary>
     TrackRecord = 1,
+
+    /// <summary>Performance weights from the panel's calibration questions (calibration × information).</summary>
+    Calibration = 2,
 }
 
 /// <summary>The shape of a relation between three questions.</summary>

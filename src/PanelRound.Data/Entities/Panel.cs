@@ -76,6 +76,15 @@ public class PanelSettings
 
     /// <summary>A relation between three questions is flagged where the given and implied values differ by more than this share (0.05 = 5%).</summary>
     public double RelationTolerance { get; set; } = 0.05;
+
+    /// <summary>The calibration cut-off α of calibration-question weights (0 to 1); null chooses it to maximise the combination's score.</summary>
+    public double? CalibrationCutoff { get; set; }
+
+    /// <summary>The overshoot of the intrinsic range of calibration questions on each side (0.10 = 10%).</summary>
+    public double CalibrationOvershoot { get; set; } = 0.10;
+
+    /// <summary>Calibration questions are scored on round 1's answers instead of the final round's.</summary>
+    public bool CalibrationUsesFirstRound { get; set; }
 }
 
 /// <summary>A panel's ask about one indicator.</summary>
@@ -111,4 +120,19 @@ public class Question
 
     /// <summary>Target periods, comma-separated; by default the panel's.</summary>
     public string TargetPeriods { get; set; } = "";
+
+    /// <summary>
+    /// A calibration question: a Range question about one period whose true value the facilitator
+    /// knows or will know soon; it scores the experts and takes no part in the consensus. Experts
+    /// are never told.
+    /// </summary>
+    public bool IsCalibration { get; set; }
+
+    /// <summary>A calibration question's true value, once recorded.</summary>
+    public double? TrueValue { get; set; }
+
+    public DateTime? TrueValueRecordedAt { get; set; }
+
+    /// <summary>The information score of this question uses a log-uniform background (for quantities spanning orders of magnitude).</summary>
+    public bool LogScale { get; set; }
 }

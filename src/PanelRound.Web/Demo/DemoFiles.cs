@@ -30,8 +30,9 @@ public sealed record DemoEstimate(string Panel, int Round, string Expert, string
 
 public sealed record DemoStaff(string Email, string Name, string Role, string Password);
 
+/// <summary>A question of a demo panel; a calibration question has its own period, its true value and maybe a log scale.</summary>
 public sealed record DemoQuestion(string Indicator, string Label, string Format, double HardMin, double HardMax,
-    double PlausibleMin, double PlausibleMax, string Help);
+    double PlausibleMin, double PlausibleMax, string Help, string? CalibrationPeriod = null, double? TrueValue = null, bool? LogScale = null);
 
 public sealed record DemoMember(string Expert, string PanelCode, string Token);
 
@@ -135,7 +136,10 @@ public sealed partial record DemoScenario(
                 Brief = Text(p.Brief),
                 StartsOn = p.StartsOn.AddYears(years).AddDays(running.Contains(p.Key) ? days : 0),
                 TargetPeriods = string.Join(",", p.TargetPeriods.Split(',').Select(Moved)),
-                Questions = [.. p.Questions.Select(q => q with { Label = Text(q.Label), Help = Text(q.Help) })],
+                Questions = [.. p.Questions.Select(q => q with
+                {
+                    Label = Text(q.Label), Help = Text(q.Help), CalibrationPeriod = q.CalibrationPeriod is { } c ? Moved(c) : null,
+                })],
                 Rounds = [.. p.Rounds.Select(r => r with { OpensAt = At(r.OpensAt, p.Key), ClosesAt = At(r.ClosesAt, p.Key) })],
             })],
             Estimates = [.. Estimates.Select(e => e with { Period = Moved(e.Period), Rationale = Text(e.Rationale), SubmittedAt = At(e.SubmittedAt, e.Panel) })],

@@ -206,8 +206,12 @@ public static class DemoGenerator
             }
         }
 
+        var indicatorList = AllSeries.Select(s => new DemoIndicator(s.Key, s.Name, s.Unit, s.Decimals, s.Description)).ToList();
+        var running = Plans.Single(p => !p.Concluded).Key;
+        DemoCalibration.Add(seed, running, [.. Traits.Select(t => (t.Key, t.Bias, t.Noise, t.Width, t.Herding))], indicatorList, observations, panels, estimates);
+
         var experts = Traits.Select(t => new DemoExpert(t.Key, t.Name, Email(t.Name), t.Affiliation, t.Expertise, t.Interests, t.Profile)).ToList();
-        var indicators = AllSeries.Select(s => new DemoIndicator(s.Key, s.Name, s.Unit, s.Decimals, s.Description)).ToList();
+        var indicators = indicatorList;
         DemoStaff[] staff =
         [
             new("facilitator@calderport-demo.example", "Fiona Harcourt (demo facilitator)", "Facilitator", "Demo-Facilitator-2026"),

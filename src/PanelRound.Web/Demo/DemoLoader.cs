@@ -88,7 +88,9 @@ public sealed class DemoLoader(PanelRoundDbContext db, UserManager<StaffUser> us
                 {
                     IndicatorId = indicators[q.Indicator].Id, Order = ++order, Label = q.Label, HelpText = q.Help,
                     Format = Enum.Parse<ResponseFormat>(q.Format), HardMin = q.HardMin, HardMax = q.HardMax,
-                    PlausibleMin = q.PlausibleMin, PlausibleMax = q.PlausibleMax, TargetPeriods = p.TargetPeriods,
+                    PlausibleMin = q.PlausibleMin, PlausibleMax = q.PlausibleMax, TargetPeriods = q.CalibrationPeriod ?? p.TargetPeriods,
+                    IsCalibration = q.CalibrationPeriod is not null, TrueValue = q.TrueValue, LogScale = q.LogScale == true,
+                    TrueValueRecordedAt = q.TrueValue is null ? null : now,
                 });
             }
             var members = new Dictionary<string, PanelMembership>();

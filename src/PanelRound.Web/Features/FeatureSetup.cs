@@ -1,4 +1,5 @@
 using PanelRound.Web.Features.Answers;
+using PanelRound.Web.Features.Calibration;
 using PanelRound.Web.Features.Imports;
 using PanelRound.Web.Features.Indicators;
 using PanelRound.Web.Features.Outcomes;
@@ -53,6 +54,10 @@ public static class FeatureSetup
         services.AddScoped<TrackRecordWeightsService>();
         services.AddScoped<IMemberWeights>(sp => sp.GetRequiredService<TrackRecordWeightsService>());
         services.AddScoped<ScorecardService>();
+
+        // Calibration: calibration questions' true values, scores and weights, cross-validation, early record.
+        services.AddScoped<CalibrationTruths>();
+        services.AddScoped<CalibrationResults>();
 
         // Outcomes: observed values that score the forecasts.
         services.AddScoped<OutcomeRecorder>();

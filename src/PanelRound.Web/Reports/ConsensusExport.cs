@@ -140,10 +140,15 @@ public static class Words
         "WeightedTrimmedMedian" => "track-record-weighted median",
         "QuantileAverage" => "quantile average",
         "WeightedQuantileAverage" => "track-record-weighted quantile average",
+        "CalibrationWeightedPool" => "calibration-weighted linear pool",
+        "CalibrationWeightedMedian" => "calibration-weighted median",
         _ => method,
     };
 
-    public static string Weighting(ConsensusWeighting weighting) => weighting == ConsensusWeighting.TrackRecord
-        ? "track-record weights (scaled error, shrunk towards the pool)"
-        : "equal weights";
+    public static string Weighting(ConsensusWeighting weighting) => weighting switch
+    {
+        ConsensusWeighting.TrackRecord => "track-record weights (scaled error, shrunk towards the pool)",
+        ConsensusWeighting.Calibration => "calibration-question weights (calibration x information)",
+        _ => "equal weights",
+    };
 }

@@ -103,6 +103,10 @@ public abstract partial class PageAuthorizationTests(IDatabaseFixture fixture) :
         ["POST /Staff/Panels/Details CloseRound"] = Access.Facilitator,
         ["POST /Staff/Panels/Details Remind"] = Access.Facilitator,
         ["POST /Staff/Panels/Details Conclude"] = Access.Facilitator,
+        // PUT /api/panels/{id}/questions/{questionId}/true-value: Facilitator; GET .../calibration(/cross-validation): Staff.
+        ["POST /Staff/Panels/Details TrueValue"] = Access.Facilitator,
+        ["GET /Staff/Panels/Calibration"] = Access.Staff,
+        ["GET /Staff/Panels/CrossValidation"] = Access.Staff,
 
         // GET /api/scorecard...: Staff; the pages ask for the Reviewer policy, which every staff role meets.
         ["GET /Staff/Scorecard/Index"] = Access.Reviewer,
@@ -332,6 +336,7 @@ public abstract partial class PageAuthorizationTests(IDatabaseFixture fixture) :
         ["membershipId"] = Invariant(seed.MembershipId),
         ["questionId"] = Invariant(seed.QuestionId),
         ["number"] = "1",
+        ["trueValue"] = "100",
         ["id"] = Invariant(seed.ApiKeyId),
         ["action"] = "submit",
     };

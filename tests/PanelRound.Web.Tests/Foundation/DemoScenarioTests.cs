@@ -35,8 +35,13 @@ public class DemoScenarioTests
         Assert.Equal("2027,2028,2029,2030,2031", current.TargetPeriods);
         Assert.True(current.Rounds.Single(r => r.Number == 1).Closed);
         Assert.False(current.Rounds.Single(r => r.Number == 2).Closed);
-        Assert.Equal(6, s.Indicators.Count);
-        foreach (var i in s.Indicators)
+        // Six annual series asked about by every panel, and ten quarterly figures behind the running panel's calibration questions.
+        var calibration = current.Questions.Where(q => q.CalibrationPeriod is not null).ToList();
+        Assert.Equal(10, calibration.Count);
+        Assert.All(calibration, q => Assert.Equal("Range", q.Format));
+        Assert.All(calibration, q => Assert.NotNull(q.TrueValue));
+        Assert.Equal(16, s.Indicators.Count);
+        foreach (var i in s.Indicators.Where(i => calibration.All(q => q.Indicator != i.Key)))
         {
             var before = s.Observations.Count(o => o.Indicator == i.Key && Period.Parse(o.Period).Year < current.StartsOn.Year);
             Assert.True(before >= 10, $"{i.Key} has {before} observations before the current panel.");

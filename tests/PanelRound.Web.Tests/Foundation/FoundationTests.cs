@@ -127,7 +127,8 @@ public abstract partial class FoundationTests(IDatabaseFixture fixture) : Provid
         });
         Assert.True(counts.Experts >= 12);
         Assert.Equal(4, counts.Panels);
-        Assert.Equal(6, counts.Indicators);
+        // Six annual series and the ten quarterly figures behind the running panel's calibration questions.
+        Assert.Equal(16, counts.Indicators);
         Assert.Equal(3, counts.Users);
         await first.DisposeAsync();
 

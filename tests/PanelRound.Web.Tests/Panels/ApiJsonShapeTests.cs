@@ -14,7 +14,8 @@ public abstract class ApiJsonShapeTests(IDatabaseFixture fixture) : ProviderTest
 {
     private static readonly string[] SettingsFields =
         ["outlierRule", "trimFraction", "consensusThreshold", "stabilityThreshold", "roundCap", "minimumGroupSize", "showRationales", "outliersMustJustify", "weighting",
-         "showBenchmarkToExperts", "expertBenchmark", "benchmarkWindow", "relationTolerance"];
+         "showBenchmarkToExperts", "expertBenchmark", "benchmarkWindow", "relationTolerance",
+         "calibrationCutoff", "calibrationOvershoot", "calibrationUsesFirstRound"];
 
     private static readonly string[] ConsensusFields = ["id", "panelId", "questionId", "period", "value", "low", "high", "n", "method", "publishedAt"];
 

@@ -1,5 +1,6 @@
 using System.Text.Json;
 using Microsoft.EntityFrameworkCore;
+using PanelRound.Core.Domain;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
 using PanelRound.Web.Features.Indicators;
@@ -39,6 +40,11 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
         foreach (var q in panel.Questions.OrderBy(q => q.Order))
         {
             var reference = references[q.IndicatorId].ToList();
+            if (q.IsCalibration && Period.TryParse(q.TargetPeriods, out var asked))
+            {
+                // A calibration question's own figure (and anything later) never reaches the expert, even once it is in the catalog.
+                reference = [.. reference.Where(r => Period.TryParse(r.Period, out var p) && p < asked)];
+            }
             var periods = new List<ExpertPeriod>();
             IReadOnlyList<string> rationales = [];
             foreach (var period in q.TargetPeriods.Split(','))

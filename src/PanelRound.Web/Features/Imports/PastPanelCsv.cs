@@ -18,9 +18,10 @@ namespace PanelRound.Web.Features.Imports;
 /// <param name="P10">A Range forecast's P10.</param>
 /// <param name="P50">Its P50.</param>
 /// <param name="P90">Its P90.</param>
+/// <param name="Calibration">True when the optional <c>calibration</c> column is 1: the question was a calibration question.</param>
 public sealed record PastForecastRow(
     int Row, string Panel, DateOnly PanelStart, DateOnly? PanelClosed, string Indicator, string Unit, Period Period, string Expert, int Round,
-    double? Value, double? P10, double? P50, double? P90)
+    double? Value, double? P10, double? P50, double? P90, bool Calibration = false)
 {
     public bool IsRange => P10 is not null;
 }
@@ -71,7 +72,7 @@ public sealed class RowErrorReport
 /// </summary>
 public static class PastPanelCsv
 {
-    /// <summary>The columns the forecasts file must have, besides value or p10, p50 and p90.</summary>
+    /// <summary>The columns the forecasts file must have, besides value or p10, p50 and p90 (optional: panel_closed, calibration).</summary>
     public static readonly IReadOnlyList<string> ForecastColumns = ["panel", "panel_start", "indicator", "unit", "target_period", "expert", "round"];
 
     /// <summary>The columns the observations file must have; source and observed_on are optional.</summary>
@@ -139,6 +140,7 @@ public static class PastPanelCsv
         var panelStarts = new Dictionary<string, (DateOnly Start, DateOnly? Closed)>(StringComparer.Ordinal);
         var units = new Dictionary<string, string>(StringComparer.Ordinal);
         var formats = new Dictionary<(string, string), bool>();
+        var kinds = new Dictionary<(string, string), (bool Calibration, Period Period)>();
         var seen = new HashSet<(string, string, Period, string, int)>();
         var panelPeriods = new Dictionary<string, HashSet<Period>>(StringComparer.Ordinal);
         foreach (var r in rows)
@@ -181,11 +183,18 @@ public static class PastPanelCsv
             {
                 Error($"unit is empty or longer than {FieldLengths.UnitLabel} characters.");
             }
+            var calibrationText = r["calibration"];
+            var calibration = calibrationText is "1";
+            if (calibrationText is not (null or "0" or "1"))
+            {
+                Error($"calibration '{calibrationText}' is 0 or 1 (1: a calibration question, whose true value is the indicator's observation at the target period).");
+            }
             if (!Period.TryParse(r["target_period"], out var period))
             {
                 Error($"target_period '{r["target_period"]}' is not a period: write a year such as 2024 or a quarter such as 2024Q3.");
             }
-            else if (start is { } s && period.Value.EndDate < s)
+            // A calibration question usually asks about a period that has just ended, before the panel's start.
+            else if (!calibration && start is { } s && period.Value.EndDate < s)
             {
                 Error($"target_period {period} ends before panel_start {s:yyyy-MM-dd}: a target period lies after the panel's start.");
             }
@@ -222,6 +231,10 @@ public static class PastPanelCsv
                 {
                     Error("the range must satisfy p10 <= p50 <= p90.");
                 }
+                else if (calibration && parts != 3)
+                {
+                    Error("a calibration question is answered with a range: give p10, p50 and p90.");
+                }
             }
             if (report.Count > before)
             {
@@ -251,6 +264,18 @@ public static class PastPanelCsv
                 Error($"panel '{panel}' asks about '{indicator}' with {(wasRange ? "ranges (p10, p50, p90)" : "single values")} on earlier rows; one question has one response format.");
             }
             formats.TryAdd((panel!, indicator!), isRange);
+            if (kinds.TryGetValue((panel!, indicator!), out var known2))
+            {
+                if (known2.Calibration != calibration)
+                {
+                    Error($"panel '{panel}' asks about '{indicator}' with calibration {(known2.Calibration ? 1 : 0)} on earlier rows; one question is a calibration question or not.");
+                }
+                else if (calibration && known2.Period != period!.Value)
+                {
+                    Error($"panel '{panel}' has calibration question '{indicator}' about {known2.Period} on earlier rows; a calibration question asks about one period.");
+                }
+            }
+            kinds.TryAdd((panel!, indicator!), (calibration, period!.Value));
             if (!seen.Add((panel!, indicator!, period!.Value, expert!, round)))
             {
                 Error($"expert '{expert}' has another forecast of {indicator} {period} in round {round} of panel '{panel}'.");
@@ -268,7 +293,7 @@ public static class PastPanelCsv
                 continue;
             }
             result.Add(new PastForecastRow(r.Row, panel!, start!.Value, closed ?? panelStarts[panel!].Closed, indicator!, unit!, period.Value, expert!, round,
-                value, isRange ? p10 : null, isRange ? p50 : null, isRange ? p90 : null));
+                value, isRange ? p10 : null, isRange ? p50 : null, isRange ? p90 : null, calibration));
         }
         return result;
     }

@@ -27,7 +27,10 @@ public sealed record PastPanelImportResult(
 /// <para><c>forecasts</c>: <c>panel</c>, <c>panel_start</c> (yyyy-MM-dd), <c>indicator</c>, <c>unit</c>,
 /// <c>target_period</c>, <c>expert</c>, <c>round</c>, and <c>value</c> or <c>p10</c>, <c>p50</c>, <c>p90</c>;
 /// optional <c>panel_closed</c> (yyyy-MM-dd, the day the panel concluded; default its start, which
-/// can only make the backtest use less history, never more). <c>observations</c>: <c>indicator</c>,
+/// can only make the backtest use less history, never more) and <c>calibration</c> (0 or 1; 1 marks
+/// a calibration question: ranges, one target period, which may lie before the panel's start; its
+/// true value is the indicator's observation at that period, from the observations file or the
+/// catalog; it takes no part in the consensus or the long-horizon scorecard). <c>observations</c>: <c>indicator</c>,
 /// <c>period</c>, <c>value</c>, optional <c>source</c> and <c>observed_on</c> (the day the value became
 /// known, between the period's end and today; without it, the period's end plus
 /// <c>Scoring:ImportPublicationLagDays</c>, at the latest the import day, so that imported history
@@ -131,7 +134,8 @@ public sealed class PastPanelImport(PanelRoundDbContext db, TimeProvider clock, 
             var panel = new Panel
             {
                 Title = group.Key, Brief = "Imported from the firm's records of past panels.", StartsOn = start,
-                TargetPeriods = string.Join(",", rows.Select(r => r.Period).Distinct().Order()), State = PanelState.Concluded,
+                TargetPeriods = string.Join(",", (rows.Any(r => !r.Calibration) ? rows.Where(r => !r.Calibration) : rows).Select(r => r.Period).Distinct().Order()),
+                State = PanelState.Concluded,
                 CreatedAt = now, CreatedBy = actor, ConcludedAt = closed, ExternalKey = group.Key, Version = Guid.NewGuid(),
             };
             var order = 0;
@@ -142,6 +146,9 @@ public sealed class PastPanelImport(PanelRoundDbContext db, TimeProvider clock, 
                     IndicatorId = indicators[q.Key].Id, Order = ++order, Label = indicators[q.Key].Name,
                     Format = q.First().IsRange ? ResponseFormat.Range : ResponseFormat.Point,
                     TargetPeriods = string.Join(",", q.Select(r => r.Period).Distinct().Order()),
+                    IsCalibration = q.First().Calibration,
+                    TrueValue = q.First().Calibration ? await TruthOfAsync(observationRows, indicators[q.Key], q.First().Period) : null,
+                    TrueValueRecordedAt = q.First().Calibration ? now : null,
                 });
             }
             foreach (var expert in rows.Select(r => r.Expert).Distinct(StringComparer.Ordinal))
@@ -213,6 +220,18 @@ public sealed class PastPanelImport(PanelRoundDbContext db, TimeProvider clock, 
         return Result<PastPanelImportResult>.Ok(new PastPanelImportResult(
             built.Count, built.Sum(b => b.Panel.Questions.Count), built.Sum(b => b.Panel.Rounds.Count), estimates, experts.Count, expertsCreated,
             indicatorsCreated, added, corrected, unchanged));
+    }
+
+    /// <summary>A calibration question's true value: the file's observation of the indicator at the period, else the catalog's current one.</summary>
+    private async Task<double?> TruthOfAsync(IReadOnlyList<PastObservationRow> observations, Indicator indicator, Core.Domain.Period period)
+    {
+        if (observations.FirstOrDefault(o => o.Indicator == indicator.Key && o.Period == period) is { } row)
+        {
+            return row.Value;
+        }
+        var text = period.ToString();
+        return await db.Observations.AsNoTracking().Where(o => o.IndicatorId == indicator.Id && o.Period == text && o.SupersededAt == null)
+            .Select(o => (double?)o.Value).FirstOrDefaultAsync();
     }
 
     private async Task<(Dictionary<string, Expert> Experts, int Created)> MatchExpertsAsync(IReadOnlyList<string> keys, DateTime now)

@@ -8,7 +8,8 @@ namespace PanelRound.Web.Features.Panels;
 public sealed record PanelSettingsInput(
     string? OutlierRule = null, double? TrimFraction = null, double? ConsensusThreshold = null, double? StabilityThreshold = null,
     int? RoundCap = null, int? MinimumGroupSize = null, bool? ShowRationales = null, bool? OutliersMustJustify = null, string? Weighting = null,
-    bool? ShowBenchmarkToExperts = null, string? ExpertBenchmark = null, int? BenchmarkWindow = null, double? RelationTolerance = null);
+    bool? ShowBenchmarkToExperts = null, string? ExpertBenchmark = null, int? BenchmarkWindow = null, double? RelationTolerance = null,
+    double? CalibrationCutoff = null, bool? OptimiseCalibrationCutoff = null, double? CalibrationOvershoot = null, bool? CalibrationUsesFirstRound = null);
 
 /// <summary>
 /// Reads a panel's settings from their input into the stored settings: each given value within
@@ -40,7 +41,7 @@ public static class PanelSettingsRules
             }
             else
             {
-                errors.Add("settings.weighting", "Weighting is Equal or TrackRecord.");
+                errors.Add("settings.weighting", "Weighting is Equal, TrackRecord or Calibration.");
             }
         }
         settings.TrimFraction = Bounded(errors, "settings.trimFraction", x.TrimFraction, settings.TrimFraction, 0, 0.45, "Trim fraction");
@@ -69,6 +70,20 @@ public static class PanelSettingsRules
             }
         }
         BenchmarkSettingsRules.Apply(settings, x, errors);
+        if (x.OptimiseCalibrationCutoff == true && x.CalibrationCutoff is not null)
+        {
+            errors.Add("settings.calibrationCutoff", "Give a calibration cut-off or ask for the optimised one, not both.");
+        }
+        else if (x.OptimiseCalibrationCutoff == true)
+        {
+            settings.CalibrationCutoff = null;
+        }
+        else if (x.CalibrationCutoff is { } cutoff)
+        {
+            settings.CalibrationCutoff = Bounded(errors, "settings.calibrationCutoff", cutoff, settings.CalibrationCutoff ?? 0, 0, 1, "Calibration cut-off");
+        }
+        settings.CalibrationOvershoot = Bounded(errors, "settings.calibrationOvershoot", x.CalibrationOvershoot, settings.CalibrationOvershoot, 0, 1, "Calibration overshoot");
+        settings.CalibrationUsesFirstRound = x.CalibrationUsesFirstRound ?? settings.CalibrationUsesFirstRound;
         settings.ShowRationales = x.ShowRationales ?? settings.ShowRationales;
         settings.OutliersMustJustify = x.OutliersMustJustify ?? settings.OutliersMustJustify;
     }

@@ -10,7 +10,7 @@ public sealed record PanelInput(string? Title, string? Brief, DateOnly? StartsOn
 
 public sealed record QuestionInput(
     int? IndicatorId, string? Label, string? HelpText, string? Format, double? HardMin, double? HardMax,
-    double? PlausibleMin, double? PlausibleMax, string? TargetPeriods = null);
+    double? PlausibleMin, double? PlausibleMax, string? TargetPeriods = null, bool? Calibration = null, bool? LogScale = null);
 
 /// <summary>
 /// Setting up a panel while it is a draft: its title, brief, start, target periods and settings,
@@ -54,7 +54,8 @@ public sealed class PanelSetup(PanelRoundDbContext db, TimeProvider clock)
         }
         var errors = Apply(panel, input);
         var periods = panel.TargetPeriods.Split(',');
-        foreach (var q in panel.Questions.Where(q => q.TargetPeriods.Split(',').Any(p => !periods.Contains(p))))
+        // A calibration question asks about its own period (often a quarter that has just ended), not the panel's.
+        foreach (var q in panel.Questions.Where(q => !q.IsCalibration && q.TargetPeriods.Split(',').Any(p => !periods.Contains(p))))
         {
             errors.Add("targetPeriods", $"Question \"{q.Label}\" asks about {q.TargetPeriods.Replace(",", ", ", StringComparison.Ordinal)}: edit it or keep those periods.");
         }
@@ -158,7 +159,17 @@ public sealed class PanelSetup(PanelRoundDbContext db, TimeProvider clock)
         }
         (question.HardMin, question.HardMax, question.PlausibleMin, question.PlausibleMax) = (input.HardMin, input.HardMax, input.PlausibleMin, input.PlausibleMax);
         var panelPeriods = Period.TryParseList(panel.TargetPeriods, out var pp, out _) ? pp : [];
-        if (string.IsNullOrWhiteSpace(input.TargetPeriods))
+        question.IsCalibration = input.Calibration ?? question.IsCalibration;
+        question.LogScale = input.LogScale ?? question.LogScale;
+        if (!question.IsCalibration)
+        {
+            (question.TrueValue, question.TrueValueRecordedAt) = (null, null);
+        }
+        if (question.IsCalibration)
+        {
+            CalibrationQuestionRules(question, input, panelPeriods, errors);
+        }
+        else if (string.IsNullOrWhiteSpace(input.TargetPeriods))
         {
             question.TargetPeriods = panel.TargetPeriods;
         }
@@ -193,9 +204,45 @@ public sealed class PanelSetup(PanelRoundDbContext db, TimeProvider clock)
         {
             return Result<Question>.Conflict("The panel changed meanwhile (a round may have opened); reload and try again.");
         }
-        Log(actor, questionId is null ? "question.added" : "question.edited", "Question", question.Id, panelId, new { question.Label, question.Format, question.TargetPeriods });
+        Log(actor, questionId is null ? "question.added" : "question.edited", "Question", question.Id, panelId,
+            new { question.Label, question.Format, question.TargetPeriods, Calibration = question.IsCalibration, question.LogScale });
         await db.SaveChangesAsync();
         return Result<Question>.Ok(question);
+    }
+
+    /// <summary>
+    /// A calibration question is a Range question about one period, which need not be one of the
+    /// panel's (it is usually a period that has just ended and whose figure is not yet published).
+    /// </summary>
+    private static void CalibrationQuestionRules(Question question, QuestionInput input, IReadOnlyList<Period> panelPeriods, FieldErrors errors)
+    {
+        if (question.Format != ResponseFormat.Range)
+        {
+            errors.Add("format", "A calibration question is a Range question (P10 / P50 / P90).");
+        }
+        if (string.IsNullOrWhiteSpace(input.TargetPeriods))
+        {
+            if (panelPeriods.Count == 1)
+            {
+                question.TargetPeriods = panelPeriods[0].ToString();
+            }
+            else
+            {
+                errors.Add("targetPeriods", "A calibration question asks about one period: give it, e.g. 2026Q3.");
+            }
+        }
+        else if (!Period.TryParseList(input.TargetPeriods, out var periods, out var err))
+        {
+            errors.Add("targetPeriods", err!);
+        }
+        else if (periods.Count != 1)
+        {
+            errors.Add("targetPeriods", "A calibration question asks about one period, e.g. 2026Q3.");
+        }
+        else
+        {
+            question.TargetPeriods = periods[0].ToString();
+        }
     }
 
     public async Task<Result<bool>> RemoveQuestionAsync(int panelId, int questionId, string actor)

@@ -1,3 +1,4 @@
+using PanelRound.Core.Calibration;
 using PanelRound.Core.Statistics;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
@@ -10,7 +11,10 @@ namespace PanelRound.Web.Features.Results;
 /// the trimmed median for Point questions (band Q1-Q3 of the retained answers), quantile
 /// averaging of the experts' P10/P50/P90 for Range questions (band P10-P90), with equal weights
 /// or the panel members' track-record weights (for each question the set of its response format:
-/// scaled absolute error for Point, scaled interval score for Range, as the backtest evaluates them).
+/// scaled absolute error for Point, scaled interval score for Range, as the backtest evaluates them)
+/// or calibration-question weights (the weighted linear pool for Range questions, the weighted
+/// median for Point questions; equal weights while no expert has a calibration weight).
+/// Calibration questions take no part in the consensus.
 /// </summary>
 public sealed class ConsensusPublisher(PanelRoundDbContext db, TimeProvider clock, IMemberWeights weights)
 {
@@ -27,9 +31,12 @@ public sealed class ConsensusPublisher(PanelRoundDbContext db, TimeProvider cloc
         var memberWeights = mode == ConsensusWeighting.TrackRecord
             ? known ?? await weights.ForPanelAsync(panel.Id, panel.ConcludedAt ?? clock.GetUtcNow().UtcDateTime)
             : null;
+        var calibrationWeights = mode == ConsensusWeighting.Calibration
+            ? await Calibration.CalibrationScoring.MembershipWeightsAsync(db, panel, round)
+            : null;
         var now = clock.GetUtcNow().UtcDateTime;
         var entries = new List<ConsensusEntry>();
-        foreach (var q in panel.Questions.OrderBy(q => q.Order))
+        foreach (var q in panel.Questions.Where(q => !q.IsCalibration).OrderBy(q => q.Order))
         {
             foreach (var period in q.TargetPeriods.Split(','))
             {
@@ -44,7 +51,13 @@ public sealed class ConsensusPublisher(PanelRoundDbContext db, TimeProvider cloc
                 {
                     w = null;
                 }
-                var value = q.Format == ResponseFormat.Range
+                var cw = calibrationWeights is null ? null : forPeriod.Select(a => calibrationWeights.GetValueOrDefault(a.MembershipId, 0)).ToList();
+                var value = cw is not null && cw.Any(x => x > 0)
+                    ? (q.Format == ResponseFormat.Range
+                        ? CalibrationConsensus.ForRange([.. forPeriod.Select(a => new RangeAnswer(a.P10!.Value, a.P50!.Value, a.P90!.Value))], cw,
+                            panel.Settings.CalibrationOvershoot, q.LogScale ? BackgroundMeasure.LogUniform : BackgroundMeasure.Uniform)
+                        : CalibrationConsensus.ForPoint([.. forPeriod.Select(a => a.Value!.Value)], cw))
+                    : q.Format == ResponseFormat.Range
                     ? Consensus.ForRange(forPeriod.Select(a => new RangeAnswer(a.P10!.Value, a.P50!.Value, a.P90!.Value)).ToList(), settings, w)
                     : Consensus.ForPoint(forPeriod.Select(a => a.Value!.Value).ToList(), settings, w);
                 entries.Add(new ConsensusEntry

@@ -82,7 +82,8 @@ public sealed class ScoringDataLoader(PanelRoundDbContext db)
             var closedOn = DateOnly.FromDateTime(p.ConcludedAt ?? last.ClosedAt ?? last.ClosesAt);
             var questions = new List<ScoredQuestion>();
             var usedKeys = new HashSet<string>(StringComparer.Ordinal);
-            foreach (var q in p.Questions.OrderBy(q => q.Order))
+            // Calibration questions score experts early (Features/Calibration), never in the long-horizon record.
+            foreach (var q in p.Questions.Where(q => !q.IsCalibration).OrderBy(q => q.Order))
             {
                 var reference = byIndicator.GetValueOrDefault(q.IndicatorId, [])
                     .Where(o => Period.TryParse(o.Period, out var period) && period.Value.EndDate < p.StartsOn)

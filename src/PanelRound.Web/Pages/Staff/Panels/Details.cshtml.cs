@@ -4,6 +4,8 @@ using Microsoft.AspNetCore.Mvc.RazorPages;
 using Microsoft.EntityFrameworkCore;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
+using PanelRound.Core.Domain;
+using PanelRound.Web.Features.Calibration;
 using PanelRound.Web.Features.Panels;
 using PanelRound.Web.Features.Results;
 using PanelRound.Web.Features.Roster;
@@ -15,7 +17,8 @@ namespace PanelRound.Web.Pages.Staff.Panels;
 /// <summary>The facilitator's panel page: questions, roster and links, rounds with the response tracker, conclusion.</summary>
 [Authorize(Policy = AuthSetup.FacilitatorPolicy)]
 [WritePolicy(AuthSetup.FacilitatorPolicy)]
-public class DetailsModel(PanelRoundDbContext db, PanelSetup setup, Memberships memberships, RoundLifecycle rounds, PanelConclusion conclusion) : PageModel
+public class DetailsModel(
+    PanelRoundDbContext db, PanelSetup setup, Memberships memberships, RoundLifecycle rounds, PanelConclusion conclusion, CalibrationTruths truths) : PageModel
 {
     [BindProperty(SupportsGet = true)]
     public int Id { get; set; }
@@ -88,6 +91,23 @@ public class DetailsModel(PanelRoundDbContext db, PanelSetup setup, Memberships 
         return await Done(result, result.Value is { Failed: > 0 } r
             ? $"Reminders sent: {r.Sent}; {r.Failed} could not be sent (recorded in the audit log as mail.failed)."
             : $"Reminders sent: {result.Value?.Sent}.");
+    }
+
+    /// <summary>Records (or, with an empty field, clears) a calibration question's true value; the number is read with a decimal point.</summary>
+    public async Task<IActionResult> OnPostTrueValueAsync(int questionId, string? trueValue)
+    {
+        double? value = null;
+        if (!string.IsNullOrWhiteSpace(trueValue))
+        {
+            var reading = Numbers.TryParseEntry(trueValue, DecimalSeparator.Point);
+            if (!reading.IsValid)
+            {
+                ModelState.AddModelError("trueValue", "The true value " + reading.Error);
+                return await OnGetAsync();
+            }
+            value = reading.Value;
+        }
+        return await Done(await truths.RecordAsync(Id, questionId, value, Audit.ActorOf(User)), value is null ? "True value cleared." : "True value recorded.");
     }
 
     public async Task<IActionResult> OnPostConcludeAsync() =>

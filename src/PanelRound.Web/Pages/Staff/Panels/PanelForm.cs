@@ -51,12 +51,20 @@ public sealed class PanelForm
         public int BenchmarkWindow { get; set; } = Defaults.BenchmarkWindow;
 
         public double RelationTolerance { get; set; } = Defaults.RelationTolerance;
+
+        /// <summary>The fixed calibration cut-off; empty chooses the optimised one.</summary>
+        public double? CalibrationCutoff { get; set; } = Defaults.CalibrationCutoff;
+
+        public double CalibrationOvershoot { get; set; } = Defaults.CalibrationOvershoot;
+
+        public bool CalibrationUsesFirstRound { get; set; } = Defaults.CalibrationUsesFirstRound;
     }
 
     public PanelInput ToInput() => new(Title, Brief, StartsOn, TargetPeriods, new PanelSettingsInput(
         Settings.OutlierRule.ToString(), Settings.TrimFraction, Settings.ConsensusThreshold, Settings.StabilityThreshold,
         Settings.RoundCap, Settings.MinimumGroupSize, Settings.ShowRationales, Settings.OutliersMustJustify, Settings.Weighting.ToString(),
-        Settings.ShowBenchmarkToExperts, Settings.ExpertBenchmark, Settings.BenchmarkWindow, Settings.RelationTolerance));
+        Settings.ShowBenchmarkToExperts, Settings.ExpertBenchmark, Settings.BenchmarkWindow, Settings.RelationTolerance,
+        Settings.CalibrationCutoff, Settings.CalibrationCutoff is null, Settings.CalibrationOvershoot, Settings.CalibrationUsesFirstRound));
 
     public static PanelForm From(Panel p) => new()
     {
@@ -68,6 +76,8 @@ public sealed class PanelForm
             ShowRationales = p.Settings.ShowRationales, OutliersMustJustify = p.Settings.OutliersMustJustify, Weighting = p.Settings.Weighting,
             ShowBenchmarkToExperts = p.Settings.ShowBenchmarkToExperts, ExpertBenchmark = p.Settings.ExpertBenchmark,
             BenchmarkWindow = p.Settings.BenchmarkWindow, RelationTolerance = p.Settings.RelationTolerance,
+            CalibrationCutoff = p.Settings.CalibrationCutoff, CalibrationOvershoot = p.Settings.CalibrationOvershoot,
+            CalibrationUsesFirstRound = p.Settings.CalibrationUsesFirstRound,
         },
     };
 }

@@ -32,6 +32,10 @@ public class QuestionModel(PanelRoundDbContext db, PanelSetup setup) : PageModel
         public double? PlausibleMax { get; set; }
 
         public string? TargetPeriods { get; set; }
+
+        public bool Calibration { get; set; }
+
+        public bool LogScale { get; set; }
     }
 
     [BindProperty(SupportsGet = true)]
@@ -60,6 +64,7 @@ public class QuestionModel(PanelRoundDbContext db, PanelSetup setup) : PageModel
             {
                 IndicatorId = q.IndicatorId, Label = q.Label, HelpText = q.HelpText, Format = q.Format, HardMin = q.HardMin, HardMax = q.HardMax,
                 PlausibleMin = q.PlausibleMin, PlausibleMax = q.PlausibleMax, TargetPeriods = q.TargetPeriods,
+                Calibration = q.IsCalibration, LogScale = q.LogScale,
             };
         }
         await LoadAsync();
@@ -69,7 +74,7 @@ public class QuestionModel(PanelRoundDbContext db, PanelSetup setup) : PageModel
     public async Task<IActionResult> OnPostAsync()
     {
         var input = new QuestionInput(Input.IndicatorId, Input.Label, Input.HelpText, Input.Format.ToString(), Input.HardMin, Input.HardMax,
-            Input.PlausibleMin, Input.PlausibleMax, Input.TargetPeriods);
+            Input.PlausibleMin, Input.PlausibleMax, Input.TargetPeriods, Input.Calibration, Input.LogScale);
         var result = QuestionId is { } id
             ? await setup.UpdateQuestionAsync(PanelId, id, input, Audit.ActorOf(User))
             : await setup.AddQuestionAsync(PanelId, input, Audit.ActorOf(User));

@@ -2,13 +2,14 @@ using Microsoft.AspNetCore.Mvc;
 using Microsoft.AspNetCore.Mvc.RazorPages;
 using PanelRound.Web.Features.Benchmarks;
 using PanelRound.Web.Features.Relations;
+using PanelRound.Web.Features.Calibration;
 using PanelRound.Web.Features.Results;
 using PanelRound.Web.Features.Scorecard;
 
 namespace PanelRound.Web.Pages.Staff.Panels;
 
 /// <summary>Results per question for staff: distributions per round, convergence, stability, outliers by panel code, stop suggestion.</summary>
-public class ResultsModel(PanelResults results, ScorecardService scorecard, PanelBenchmarks benchmarks, PanelRelations relations) : PageModel
+public class ResultsModel(PanelResults results, ScorecardService scorecard, PanelBenchmarks benchmarks, PanelRelations relations, CalibrationResults calibration) : PageModel
 {
     [BindProperty(SupportsGet = true)]
     public int Id { get; set; }
@@ -29,6 +30,14 @@ public class ResultsModel(PanelResults results, ScorecardService scorecard, Pane
 
     public QuestionBenchmarksDto? BenchmarksOf(int questionId) => Benchmarks?.Questions.FirstOrDefault(q => q.QuestionId == questionId);
 
+    /// <summary>The calibration questions' scores and weights; null when the panel has none.</summary>
+    public PanelCalibrationView? Calibration { get; private set; }
+
+    /// <summary>Equal, track-record and calibration-weighted consensus side by side; null without calibration questions or a closed round.</summary>
+    public CalibrationComparison? CalibrationComparison { get; private set; }
+
+    public bool IsCalibration(int questionId) => Calibration?.Questions.Any(q => q.QuestionId == questionId) == true;
+
     public static readonly string[] RoundColours = ["#1f77b4", "#ff7f0e", "#9467bd", "#8c564b", "#e377c2"];
 
     public async Task<IActionResult> OnGetAsync()
@@ -43,6 +52,11 @@ public class ResultsModel(PanelResults results, ScorecardService scorecard, Pane
         Benchmarks = await benchmarks.BuildAsync(Id);
         Relations = PanelRelations.OnConsensus(await relations.ListAsync(Id) ?? [], view);
         RelationsByCode = await relations.ByPanelCodeAsync(Id);
+        if (await calibration.ViewAsync(Id) is { Questions.Count: > 0 } cal)
+        {
+            Calibration = cal;
+            CalibrationComparison = await calibration.CompareAsync(Id, Comparison);
+        }
         return Page();
     }
 }

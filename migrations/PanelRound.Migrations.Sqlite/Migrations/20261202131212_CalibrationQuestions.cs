@@ -1,0 +1,94 @@
+﻿using System;
+using Microsoft.EntityFrameworkCore.Migrations;
+
+#nullable disable
+
+namespace PanelRound.Migrations.Sqlite.Migrations
+{
+    /// <inheritdoc />
+    public partial class CalibrationQuestions : Migration
+    {
+        /// <inheritdoc />
+        protected override void Up(MigrationBuilder migrationBuilder)
+        {
+            migrationBuilder.AddColumn<bool>(
+                name: "IsCalibration",
+                table: "Questions",
+                type: "INTEGER",
+                nullable: false,
+                defaultValue: false);
+
+            migrationBuilder.AddColumn<bool>(
+                name: "LogScale",
+                table: "Questions",
+                type: "INTEGER",
+                nullable: false,
+                defaultValue: false);
+
+            migrationBuilder.AddColumn<double>(
+                name: "TrueValue",
+                table: "Questions",
+                type: "REAL",
+                nullable: true);
+
+            migrationBuilder.AddColumn<DateTime>(
+                name: "TrueValueRecordedAt",
+                table: "Questions",
+                type: "TEXT",
+                nullable: true);
+
+            migrationBuilder.AddColumn<double>(
+                name: "Settings_CalibrationCutoff",
+                table: "Panels",
+                type: "REAL",
+                nullable: true);
+
+            migrationBuilder.AddColumn<double>(
+                name: "Settings_CalibrationOvershoot",
+                table: "Panels",
+                type: "REAL",
+                nullable: false,
+                // Existing panels get the documented 10% overshoot, not 0.
+                defaultValue: 0.10);
+
+            migrationBuilder.AddColumn<bool>(
+                name: "Settings_CalibrationUsesFirstRound",
+                table: "Panels",
+                type: "INTEGER",
+                nullable: false,
+                defaultValue: false);
+        }
+
+        /// <inheritdoc />
+        protected override void Down(MigrationBuilder migrationBuilder)
+        {
+            migrationBuilder.DropColumn(
+                name: "IsCalibration",
+                table: "Questions");
+
+            migrationBuilder.DropColumn(
+                name: "LogScale",
+                table: "Questions");
+
+            migrationBuilder.DropColumn(
+                name: "TrueValue",
+                table: "Questions");
+
+            migrationBuilder.DropColumn(
+                name: "TrueValueRecordedAt",
+                table: "Questions");
+
+            migrationBuilder.DropColumn(
+                name: "Settings_CalibrationCutoff",
+                table: "Panels");
+
+            migrationBuilder.DropColumn(
+                name: "Settings_CalibrationOvershoot",
+                table: "Panels");
+
+            migrationBuilder.DropColumn(
+                name: "Settings_CalibrationUsesFirstRound",
+                table: "Panels");
+        }
+    }
+}
