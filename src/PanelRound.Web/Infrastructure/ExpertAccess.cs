@@ -34,6 +34,10 @@ public static class ExpertAccess
         return await db.Memberships.FirstOrDefaultAsync(m => m.Id == id && m.TokenHash == stamp && m.State != MembershipState.Revoked);
     }
 
+    /// <summary>Whether the request presents an expert credential at all: a token header, or a link cookie that still reads.</summary>
+    public static async Task<bool> PresentedAsync(HttpContext ctx) =>
+        !string.IsNullOrWhiteSpace(ctx.Request.Headers[TokenHeader]) || (await ctx.AuthenticateAsync(AuthSetup.ExpertScheme)).Succeeded;
+
     /// <summary>The membership a token opens, or null for an unknown or revoked token.</summary>
     public static Task<PanelMembership?> ResolveTokenAsync(PanelRoundDbContext db, string? token) =>
         string.IsNullOrWhiteSpace(token)

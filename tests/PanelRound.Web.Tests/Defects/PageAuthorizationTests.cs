@@ -20,7 +20,7 @@ namespace PanelRound.Web.Tests.Defects;
 public abstract partial class PageAuthorizationTests(IDatabaseFixture fixture) : ProviderTests(fixture)
 {
     /// <summary>Who may call a page handler.</summary>
-    private enum Access
+    internal enum Access
     {
         /// <summary>Anyone, signed in or not.</summary>
         Public,
@@ -46,7 +46,7 @@ public abstract partial class PageAuthorizationTests(IDatabaseFixture fixture) :
     /// has the policy of the API route that makes the same change (Apis/*.cs); a new handler fails
     /// the coverage check until it is added here.
     /// </summary>
-    private static readonly IReadOnlyDictionary<string, Access> Expected = new Dictionary<string, Access>
+    internal static readonly IReadOnlyDictionary<string, Access> Expected = new Dictionary<string, Access>
     {
         ["GET /Index"] = Access.Public,
         ["GET /Error"] = Access.Public,
@@ -116,7 +116,7 @@ public abstract partial class PageAuthorizationTests(IDatabaseFixture fixture) :
     };
 
     /// <summary>The roles each staff policy admits, as AuthSetup defines them.</summary>
-    private static IReadOnlyList<string> Admits(Access access) => access switch
+    internal static IReadOnlyList<string> Admits(Access access) => access switch
     {
         Access.Staff or Access.Reviewer => [Roles.Reviewer, Roles.Facilitator, Roles.Administrator],
         Access.Facilitator => [Roles.Facilitator, Roles.Administrator],
@@ -125,7 +125,7 @@ public abstract partial class PageAuthorizationTests(IDatabaseFixture fixture) :
     };
 
     /// <summary>What a response tells about access.</summary>
-    private enum Answer
+    internal enum Answer
     {
         Allowed,
         SignInRequired,
@@ -140,7 +140,7 @@ public abstract partial class PageAuthorizationTests(IDatabaseFixture fixture) :
     }
 
     /// <summary>Entities the calls point at, so that a refused call would have written had it been allowed.</summary>
-    private sealed record Seed(int IndicatorId, string IndicatorKey, int PanelId, int QuestionId, int NewExpertId, int MembershipId, int ApiKeyId);
+    internal sealed record Seed(int IndicatorId, string IndicatorKey, int PanelId, int QuestionId, int NewExpertId, int MembershipId, int ApiKeyId);
 
     [SkippableFact]
     public async Task EveryPageHandler_EveryRole_AllowsExactlyTheExpectedPolicy()
@@ -273,7 +273,7 @@ public abstract partial class PageAuthorizationTests(IDatabaseFixture fixture) :
     }
 
     /// <summary>The handler's route with its parameters filled with entities that exist (a bogus personal link on purpose).</summary>
-    private static string Url(PageHandler h, Seed seed)
+    internal static string Url(PageHandler h, Seed seed)
     {
         var id = h.Page switch
         {
@@ -292,7 +292,7 @@ public abstract partial class PageAuthorizationTests(IDatabaseFixture fixture) :
     /// allowed: the fields of every page's input (they do not collide), plus the handler's own
     /// arguments.
     /// </summary>
-    private static List<KeyValuePair<string, string>> FormFor(PageHandler h, Seed seed)
+    internal static List<KeyValuePair<string, string>> FormFor(PageHandler h, Seed seed)
     {
         var form = new Dictionary<string, string>(StringComparer.Ordinal)
         {
@@ -343,7 +343,7 @@ public abstract partial class PageAuthorizationTests(IDatabaseFixture fixture) :
 
     private static string Invariant(int v) => v.ToString(System.Globalization.CultureInfo.InvariantCulture);
 
-    private static Answer Classify(HttpResponseMessage r)
+    internal static Answer Classify(HttpResponseMessage r)
     {
         var location = r.Headers.Location;
         var path = location is null ? "" : location.IsAbsoluteUri ? location.AbsolutePath : location.OriginalString.Split('?')[0];
@@ -375,7 +375,7 @@ public abstract partial class PageAuthorizationTests(IDatabaseFixture fixture) :
     });
 
     /// <summary>An indicator with a series, a draft panel with a question and a member, an expert not yet on it, an API key.</summary>
-    private static async Task<Seed> SeedAsync(TestApp app)
+    internal static async Task<Seed> SeedAsync(TestApp app)
     {
         var api = await app.StaffClientAsync(Roles.Facilitator);
         const string key = "price-harbour";

@@ -215,7 +215,8 @@ public abstract class PanelStoryTests(IDatabaseFixture fixture) : ProviderTests(
         Assert.Equal(HttpStatusCode.NotFound, (await client.GetAsync($"/api/expert/memberships/{s.Members[1].MembershipId}")).StatusCode);
         Assert.Equal(HttpStatusCode.NotFound, (await client.Post($"/api/expert/panels/{otherId}/estimates", new { draft = true, answers = Array.Empty<object>() })).Status);
         Assert.Equal(HttpStatusCode.NotFound, (await s.App.Client().WithExpertToken("not-a-token").GetAsync($"/api/expert/panels/{s.PanelId}")).StatusCode);
-        Assert.Equal(HttpStatusCode.NotFound, (await s.App.Client().GetAsync($"/api/expert/panels/{s.PanelId}")).StatusCode);
+        // No token and no link cookie: the caller is anonymous.
+        Assert.Equal(HttpStatusCode.Unauthorized, (await s.App.Client().GetAsync($"/api/expert/panels/{s.PanelId}")).StatusCode);
         // An expert token is not a staff credential.
         Assert.Equal(HttpStatusCode.Unauthorized, (await s.App.Client(s.Members[0].Token).GetAsync($"/api/panels/{s.PanelId}")).StatusCode);
 

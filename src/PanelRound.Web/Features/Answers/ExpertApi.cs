@@ -8,7 +8,7 @@ namespace PanelRound.Web.Features.Answers;
 /// <summary>
 /// The expert's API, authenticated by the personal link's token in <c>X-Expert-Token</c> (or
 /// the link's cookie). A token reaches only its own membership: any other panel or membership
-/// id, and an unknown or revoked token, answer 404.
+/// id, and an unknown or revoked token, answer 404; a call with neither token nor cookie answers 401.
 /// </summary>
 public static class ExpertApi
 {
@@ -22,7 +22,10 @@ public static class ExpertApi
             var m = await ExpertAccess.CurrentAsync(ctx.HttpContext, db);
             if (m is null)
             {
-                return ApiResults.NotFound("This personal link is unknown or has been revoked.");
+                return await ExpertAccess.PresentedAsync(ctx.HttpContext)
+                    ? ApiResults.NotFound("This personal link is unknown or has been revoked.")
+                    : TypedResults.Problem($"Send the personal link's token in the {ExpertAccess.TokenHeader} header, or open the link first.",
+                        statusCode: StatusCodes.Status401Unauthorized, title: "Unauthorized");
             }
             ctx.HttpContext.Items[typeof(PanelMembership)] = m;
             return await next(ctx);
