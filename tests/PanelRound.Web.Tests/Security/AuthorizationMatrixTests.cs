@@ -62,6 +62,14 @@ public abstract partial class AuthorizationMatrixTests(IDatabaseFixture fixture)
         ["GET /api/panels/{id:int}/rounds/{number:int}/tracker"] = Access.Facilitator,
 
         ["GET /api/panels/{id:int}/results"] = Access.Staff,
+        ["GET /api/panels/{id:int}/benchmarks"] = Access.Staff,
+        ["GET /api/panels/{id:int}/relations"] = Access.Staff,
+        ["GET /api/panels/{id:int}/relations/check"] = Access.Staff,
+        ["POST /api/panels/{id:int}/relations"] = Access.Facilitator,
+        ["DELETE /api/panels/{id:int}/relations/{relationId:int}"] = Access.Facilitator,
+        ["GET /api/panels/{id:int}/calibration"] = Access.Staff,
+        ["GET /api/panels/{id:int}/calibration/cross-validation"] = Access.Staff,
+        ["PUT /api/panels/{id:int}/questions/{questionId:int}/true-value"] = Access.Facilitator,
         ["GET /api/panels/{id:int}/consensus"] = Access.Staff,
         ["POST /api/panels/{id:int}/conclude"] = Access.Facilitator,
         ["GET /api/panels/{id:int}/consensus/compare"] = Access.Staff,
@@ -219,6 +227,8 @@ public abstract partial class AuthorizationMatrixTests(IDatabaseFixture fixture)
             "membershipId" => membership.Invariant(),
             "questionId" => seed.QuestionId.Invariant(),
             "number" => "1",
+            // No relation is seeded: the route's authorisation answers before the id is looked up.
+            "relationId" => "1",
             "documentName" => "v1",
             var other => throw new InvalidOperationException($"{e.Key}: no test value for {other}."),
         });
