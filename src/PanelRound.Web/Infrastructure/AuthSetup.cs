@@ -23,7 +23,16 @@ public static class AuthSetup
     public static IHostApplicationBuilder AddPanelRoundAuth(this IHostApplicationBuilder builder)
     {
         var services = builder.Services;
-        services.AddDataProtection().SetApplicationName("PanelRound").PersistKeysToDbContext<PanelRoundDbContext>();
+        // The key ring lives in the database, so every instance reads the cookies of the others.
+        var dataProtection = services.AddDataProtection().SetApplicationName("PanelRound").PersistKeysToDbContext<PanelRoundDbContext>();
+        // At rest the keys are encrypted with a certificate when one is configured (recommended in production;
+        // without it ASP.NET Core warns at start-up that keys are stored unencrypted).
+        var certificatePath = builder.Configuration["DataProtection:CertificatePath"];
+        if (!string.IsNullOrWhiteSpace(certificatePath))
+        {
+            dataProtection.ProtectKeysWithCertificate(System.Security.Cryptography.X509Certificates.X509CertificateLoader.LoadPkcs12FromFile(
+                certificatePath, builder.Configuration["DataProtection:CertificatePassword"], System.Security.Cryptography.X509Certificates.X509KeyStorageFlags.EphemeralKeySet));
+        }
 
         services.AddIdentity<StaffUser, IdentityRole>(o =>
             {
