@@ -224,7 +224,8 @@ public static class ClassicalModel
             foreach (var alpha in scores.Select(s => s.Calibration).Append(0).Distinct().Order())
             {
                 var candidate = CombinationScore("weighted", items, used, RawWeights(scores, alpha), ranges);
-                if (candidate is not null && (weighted is null || candidate.Combined > weighted.Combined))
+                // Scores equal up to rounding (the order of the questions changes the last bits of a sum) are a tie: the lower cut-off stays.
+                if (candidate is not null && (weighted is null || candidate.Combined > weighted.Combined + (1e-12 * Math.Max(1, Math.Abs(weighted.Combined)))))
                 {
                     (cutoff, weighted) = (alpha, candidate);
                 }
