@@ -17,9 +17,6 @@ public sealed class TestClock : TimeProvider
 {
     private FakeTimeProvider _fake = Fresh();
 
-    /// <summary>The fake currently behind the clock.</summary>
-    public FakeTimeProvider Fake => _fake;
-
     /// <summary>Moves the app's time forward.</summary>
     public void Advance(TimeSpan by) => _fake.Advance(by);
 
