@@ -9,7 +9,8 @@ RUN dotnet publish src/PanelRound.Web/PanelRound.Web.csproj -c Release -o /app/p
 FROM mcr.microsoft.com/dotnet/aspnet:10.0 AS runtime
 WORKDIR /app
 COPY --from=build /app/publish .
-# The demo scenario travels with the image; it loads only when Demo__Enabled=true.
+# The demo scenario travels with the image; it loads only when Demo__Enabled=true, and never in
+# Production (its links and passwords are public): set ASPNETCORE_ENVIRONMENT=Staging for a demo container.
 COPY demo-data/ /app/demo-data/
 ENV ASPNETCORE_URLS=http://+:8080 \
     Database__Provider=Postgres \

@@ -34,11 +34,17 @@ public static class WebSetup
         return builder;
     }
 
-    /// <summary>Migrates where configured, then loads the demo scenario into an empty database when the demo is on.</summary>
+    /// <summary>Refuses the demo in Production, migrates where configured, then loads the demo scenario into an empty database when the demo is on.</summary>
     public static async Task PrepareDatabaseAsync(this WebApplication app)
     {
-        await DatabaseSetup.PrepareAsync(app.Services);
         var demo = app.Services.GetRequiredService<Microsoft.Extensions.Options.IOptions<DemoOptions>>().Value;
+        if (demo.Enabled && app.Environment.IsProduction())
+        {
+            // The demo's personal-link tokens and staff passwords are committed to the repository: public.
+            throw new InvalidOperationException("Demo:Enabled is refused in Production: the demo's links and passwords are public. "
+                + "Run the demo in another environment (e.g. ASPNETCORE_ENVIRONMENT=Staging).");
+        }
+        await DatabaseSetup.PrepareAsync(app.Services);
         if (demo.Enabled)
         {
             using var scope = app.Services.CreateScope();

@@ -49,6 +49,10 @@ public sealed partial class BadRequestProblems(IProblemDetailsService problems) 
                     return (status, Errors(ParameterOf(bad.Message) ?? "body", "The multipart form could not be read: " + Innermost(bad).Message));
                 }
                 return (status, Errors(ParameterOf(bad.Message) ?? "body", bad.Message));
+            case InvalidOperationException { InnerException: ArgumentException } charset
+                when charset.StackTrace?.Contains("HttpRequestJsonExtensions", StringComparison.Ordinal) == true:
+                // Thrown by the JSON body reader when the Content-Type names a charset .NET does not know.
+                return (StatusCodes.Status415UnsupportedMediaType, Errors("Content-Type", "The charset of the request is not a known encoding; send JSON as UTF-8 (application/json; charset=utf-8)."));
             case InvalidDataException data:
                 // Thrown by the multipart reader (ReadFormAsync) on a malformed body.
                 return (StatusCodes.Status400BadRequest, Errors("body", "The multipart form could not be read: " + data.Message));

@@ -204,7 +204,14 @@ public static class CsvFiles
             try
             {
                 error = null;
-                return StrictUtf8.GetString(raw);
+                var text = StrictUtf8.GetString(raw);
+                if (text.IndexOf('\0', StringComparison.Ordinal) is var nul and >= 0)
+                {
+                    // NUL is not text (PostgreSQL cannot even store it); refused like a byte that is not UTF-8.
+                    error = new CsvError(record, line, $"{Where(record, line)}: byte {offset + Encoding.UTF8.GetByteCount(text[..nul]) + 1} is a NUL character, which is not text.");
+                    return null;
+                }
+                return text;
             }
             catch (DecoderFallbackException e)
             {

@@ -37,9 +37,33 @@ public sealed class StrictDoubleConverter : JsonConverter<double>
     public override void Write(Utf8JsonWriter writer, double value, JsonSerializerOptions options) => writer.WriteNumberValue(value);
 }
 
+/// <summary>
+/// Reads every JSON text of the API, refusing one that holds a NUL character (U+0000): it is not
+/// text, and PostgreSQL cannot store it or even compare with it, so it would reach a query as a 500.
+/// Other control characters are left to the use case's validation (<see cref="FieldErrors"/>), which names the field.
+/// </summary>
+public sealed class StrictStringConverter : JsonConverter<string>
+{
+    public override string? Read(ref Utf8JsonReader reader, Type typeToConvert, JsonSerializerOptions options)
+    {
+        if (reader.TokenType != JsonTokenType.String)
+        {
+            throw new JsonException("Expected a text.");
+        }
+        var text = reader.GetString();
+        return text is not null && text.Contains('\0', StringComparison.Ordinal) ? throw new JsonException("A text holds a NUL character (U+0000).") : text;
+    }
+
+    public override void Write(Utf8JsonWriter writer, string value, JsonSerializerOptions options) => writer.WriteStringValue(value);
+}
+
 public static class StrictNumbersSetup
 {
-    /// <summary>Adds <see cref="StrictDoubleConverter"/> to the minimal API's JSON options (nullable doubles use it too).</summary>
+    /// <summary>Adds <see cref="StrictDoubleConverter"/> (nullable doubles use it too) and <see cref="StrictStringConverter"/> to the minimal API's JSON options.</summary>
     public static IServiceCollection AddStrictJsonNumbers(this IServiceCollection services) =>
-        services.ConfigureHttpJsonOptions(o => o.SerializerOptions.Converters.Add(new StrictDoubleConverter()));
+        services.ConfigureHttpJsonOptions(o =>
+        {
+            o.SerializerOptions.Converters.Add(new StrictDoubleConverter());
+            o.SerializerOptions.Converters.Add(new StrictStringConverter());
+        });
 }
