@@ -38,6 +38,8 @@ public class PanelRoundDbContext(DbContextOptions<PanelRoundDbContext> options)
 
     public DbSet<Estimate> Estimates => Set<Estimate>();
 
+    public DbSet<SubmissionKey> SubmissionKeys => Set<SubmissionKey>();
+
     public DbSet<ConsensusEntry> Consensus => Set<ConsensusEntry>();
 
     public DbSet<QuestionRelation> Relations => Set<QuestionRelation>();

@@ -124,6 +124,18 @@ internal sealed class EstimateConfiguration : IEntityTypeConfiguration<Estimate>
     }
 }
 
+internal sealed class SubmissionKeyConfiguration : IEntityTypeConfiguration<SubmissionKey>
+{
+    public void Configure(EntityTypeBuilder<SubmissionKey> b)
+    {
+        b.Property(x => x.KeyHash).HasMaxLength(64).IsRequired();
+        b.Property(x => x.RequestHash).HasMaxLength(64).IsRequired();
+        b.Property(x => x.WarningsJson).IsRequired();
+        b.HasIndex(x => new { x.MembershipId, x.KeyHash }).IsUnique();
+        b.HasOne<PanelMembership>().WithMany().HasForeignKey(x => x.MembershipId).OnDelete(DeleteBehavior.Restrict);
+    }
+}
+
 internal sealed class ConsensusConfiguration : IEntityTypeConfiguration<ConsensusEntry>
 {
     public void Configure(EntityTypeBuilder<ConsensusEntry> b)

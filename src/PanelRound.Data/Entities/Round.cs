@@ -119,3 +119,32 @@ public class ConsensusEntry
 
     public DateTime PublishedAt { get; set; }
 }
+
+/// <summary>
+/// A submission's idempotency key (the <c>Idempotency-Key</c> header of the expert API, or the
+/// expert page's form key), kept with the receipt it produced, so that a client retrying after a
+/// timeout or a crash gets the same receipt back and adds no second revision.
+/// </summary>
+public class SubmissionKey
+{
+    public long Id { get; set; }
+
+    public int MembershipId { get; set; }
+
+    /// <summary>SHA-256 of the key as sent, in lower-case hex (the key itself is not kept).</summary>
+    public string KeyHash { get; set; } = "";
+
+    /// <summary>SHA-256 of the submission's canonical JSON: a key reused for a different body is refused.</summary>
+    public string RequestHash { get; set; } = "";
+
+    public int RoundNumber { get; set; }
+
+    public int Saved { get; set; }
+
+    public bool IsDraft { get; set; }
+
+    /// <summary>The receipt's warnings, a JSON array of strings.</summary>
+    public string WarningsJson { get; set; } = "[]";
+
+    public DateTime CreatedAt { get; set; }
+}

@@ -9,7 +9,8 @@ using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Features.Answers;
 
-public sealed record SubmissionReceipt(int Round, int Saved, bool Draft, DateTime At, IReadOnlyList<string> Warnings);
+/// <summary>What a saved submission produced; <paramref name="Replayed"/> is true when an idempotency key had already produced it.</summary>
+public sealed record SubmissionReceipt(int Round, int Saved, bool Draft, DateTime At, IReadOnlyList<string> Warnings, bool Replayed = false);
 
 /// <summary>
 /// The expert's side: the form behind a personal link, and submissions (drafts, submits,
@@ -99,13 +100,24 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
     /// close reads the answers or is refused with a conflict: never acknowledged and then missed.
     /// Submissions only queue behind each other on that row; they do not fail.
     /// </remarks>
-    public async Task<Result<SubmissionReceipt>> SubmitAsync(int membershipId, SubmissionInput input)
+    /// <param name="membershipId">The expert's membership.</param>
+    /// <param name="input">The answers.</param>
+    /// <param name="idempotencyKey">
+    /// An optional key chosen by the client: a second call with the same key and the same answers
+    /// returns the first call's receipt and adds nothing; the same key with different answers is refused.
+    /// </param>
+    public async Task<Result<SubmissionReceipt>> SubmitAsync(int membershipId, SubmissionInput input, string? idempotencyKey = null)
     {
         db.ChangeTracker.Clear();
         var m = await db.Memberships.SingleAsync(x => x.Id == membershipId);
         if (m.State == MembershipState.Revoked)
         {
             return Result<SubmissionReceipt>.NotFound("This personal link is unknown or has been revoked.");
+        }
+        SubmissionKeys.Fingerprints? key = idempotencyKey is null ? null : SubmissionKeys.Fingerprint(idempotencyKey, input);
+        if (key is not null && await SubmissionKeys.ReplayAsync(db, m.Id, key.Value) is { } replay)
+        {
+            return replay;
         }
         var panel = await db.Panels.AsNoTracking().Include(p => p.Questions).ThenInclude(q => q.Indicator).Include(p => p.Rounds).SingleAsync(p => p.Id == m.PanelId);
         var (_, canAnswer, reason) = Status(panel);
@@ -135,7 +147,9 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
         // Implementation note: the stored time is read only now, while this transaction holds the
         // round row and the membership row, so the expert's revisions get their times in the same
         // order as their ids: the revision that counts (the highest id) is the latest in time.
-        var now = Now;
+        // Whole microseconds: what PostgreSQL keeps, so a replayed receipt shows the same time as the first.
+        var clockNow = Now;
+        var now = clockNow.AddTicks(-(clockNow.Ticks % TimeSpan.TicksPerMicrosecond));
         if (stillOpen == 0)
         {
             return Result<SubmissionReceipt>.Conflict($"Round {round.Number} closed; answers can no longer be changed.");
@@ -150,8 +164,24 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
             Confidence = a.Confidence, Rationale = a.Rationale, IsDraft = input.Draft, CreatedAt = now,
         }).ToList();
         db.Estimates.AddRange(rows);
-        await db.SaveChangesAsync();
-        await tx.CommitAsync();
-        return Result<SubmissionReceipt>.Ok(new SubmissionReceipt(round.Number, rows.Count, input.Draft, now, check.Warnings));
+        var receipt = new SubmissionReceipt(round.Number, rows.Count, input.Draft, now, check.Warnings);
+        if (key is not null)
+        {
+            db.SubmissionKeys.Add(SubmissionKeys.Record(m.Id, key.Value, receipt));
+        }
+        try
+        {
+            await db.SaveChangesAsync();
+            await tx.CommitAsync();
+        }
+        catch (DbUpdateException) when (key is not null)
+        {
+            // The same key raced this call and committed first (the unique index refused the
+            // second row): nothing of this call is kept, and the first call's receipt is the answer.
+            await tx.RollbackAsync();
+            db.ChangeTracker.Clear();
+            return await SubmissionKeys.ReplayAsync(db, m.Id, key.Value) ?? throw new InvalidOperationException("A submission failed to save.");
+        }
+        return Result<SubmissionReceipt>.Ok(receipt);
     }
 }

@@ -34,7 +34,9 @@ public static class ExpertApi
         g.MapGet("/panels/{panelId:int}", GetForm).WithName("GetExpertForm")
             .WithSummary("The brief, questions with reference series, own answers and the previous round's anonymous feedback.");
         g.MapPost("/panels/{panelId:int}/estimates", Submit).WithName("SubmitEstimates")
-            .WithSummary("Saves a draft or submits answers for the open round (each revision a new row; the latest counts).");
+            .WithSummary("Saves a draft or submits answers for the open round (each revision a new row; the latest counts).")
+            .WithDescription("An optional Idempotency-Key header (1-255 printable ASCII characters, e.g. a UUID) makes a retry safe: "
+                + "the same key with the same answers returns the first receipt (Replayed: true) and adds nothing; the same key with other answers answers 400.");
         return app;
     }
 
@@ -64,6 +66,16 @@ public static class ExpertApi
         {
             return ApiResults.NotFound($"Panel {panelId} is not reachable with this link.");
         }
-        return (await answers.SubmitAsync(m.Id, input)).ToOk(r => r);
+        string? key = null;
+        if (ctx.Request.Headers.TryGetValue(SubmissionKeys.Header, out var keys))
+        {
+            key = keys.Count == 1 ? keys[0] ?? "" : "";
+            // An empty header is a malformed key, not an absent one.
+            if ((keys.Count > 1 ? "Send one idempotency key." : SubmissionKeys.Problem(key)) is { } problem)
+            {
+                return TypedResults.ValidationProblem(new Dictionary<string, string[]> { [SubmissionKeys.Header] = [problem] }, title: "The input has errors.");
+            }
+        }
+        return (await answers.SubmitAsync(m.Id, input, key)).ToOk(r => r);
     }
 }

@@ -41,6 +41,13 @@ public class IndexModel(PanelRoundDbContext db, ExpertAnswers answers, ExpertBen
     [BindProperty]
     public List<AnswerForm> Answers { get; set; } = [];
 
+    /// <summary>
+    /// A key per rendered form (sent as the submission's idempotency key): a form sent twice, by a
+    /// double click or a resend after a dropped connection, adds one revision, not two.
+    /// </summary>
+    [BindProperty]
+    public string? FormKey { get; set; }
+
     /// <summary>The decimal separator the expert types numbers with ("point" or "comma"); by default from the browser's language.</summary>
     [BindProperty(SupportsGet = true)]
     public string? Decimals { get; set; }
@@ -82,6 +89,7 @@ public class IndexModel(PanelRoundDbContext db, ExpertAnswers answers, ExpertBen
         await LoadExtrasAsync(m.Id);
         Warnings = SavedWarnings is { Length: > 0 } w ? w.Split('\n') : [];
         Decimals = Decimals is "comma" or "point" ? Decimals : DefaultSeparator(Request.Headers.AcceptLanguage.ToString());
+        FormKey = NewFormKey();
         return Page();
     }
 
@@ -128,7 +136,13 @@ public class IndexModel(PanelRoundDbContext db, ExpertAnswers answers, ExpertBen
                 Read(p.P50, $"answers[{qi}].periods[{pi}].p50"), Read(p.P90, $"answers[{qi}].periods[{pi}].p90"))).ToList())).ToList());
         if (ModelState.ErrorCount == 0)
         {
-            var result = await answers.SubmitAsync(m.Id, input);
+            var key = FormKey is { } k && SubmissionKeys.Problem(k) is null ? k : null;
+            var result = await answers.SubmitAsync(m.Id, input, key);
+            if (result.Errors.ContainsKey(SubmissionKeys.Header))
+            {
+                // The form was sent before with other answers (a page restored from the browser's history).
+                result = Result<SubmissionReceipt>.Conflict("This form had already been sent with other answers. Check the answers below and send them again.");
+            }
             if (result.IsOk)
             {
                 var r = result.Value!;
@@ -141,8 +155,12 @@ public class IndexModel(PanelRoundDbContext db, ExpertAnswers answers, ExpertBen
         }
         Form = await answers.GetFormAsync(m.Id);
         await LoadExtrasAsync(m.Id);
+        FormKey = NewFormKey();
+        ModelState.Remove(nameof(FormKey));
         return Page();
     }
+
+    private static string NewFormKey() => $"form-{Guid.NewGuid():N}";
 
     /// <summary>The errors beside a field, keyed like the submission's (<c>answers[0].periods[1].value</c>; model-state keys ignore case), or null.</summary>
     public string? ErrorFor(string key) =>
