@@ -50,6 +50,21 @@ public static class PostgresServer
         {
             return given;
         }
+        var server = await StartThrowawayAsync(fsync: false);
+        AppDomain.CurrentDomain.ProcessExit += (_, _) => server.StopAsync().GetAwaiter().GetResult();
+        return server.ConnectionString;
+    }
+
+    /// <summary>A running throwaway server, and how to stop it and delete its files.</summary>
+    public sealed record Throwaway(string ConnectionString, Func<Task> StopAsync);
+
+    /// <summary>
+    /// Starts a throwaway server from the local binaries: initdb in a temp folder, run as the
+    /// <c>postgres</c> user when the process is root, on 127.0.0.1 and a free port. The tests run
+    /// with <paramref name="fsync"/> off; the crash-recovery and load drivers in bench/ keep it on.
+    /// </summary>
+    public static async Task<Throwaway> StartThrowawayAsync(bool fsync, int maxConnections = 200)
+    {
         var bin = FindBinDir() ?? throw new InvalidOperationException(UnavailableReason());
         var root = Path.Combine("/tmp", "panelround-pg-" + Guid.NewGuid().ToString("N")[..12]);
         var data = Path.Combine(root, "data");
@@ -61,13 +76,14 @@ public static class PostgresServer
         }
         var port = FreePort();
         await RunPgAsync(asRoot, Path.Combine(bin, "initdb"), $"-D {data} -U postgres --auth=trust -E UTF8 --locale=C.UTF-8");
+        var durability = fsync ? "-c fsync=on -c synchronous_commit=on" : "-c fsync=off";
         await RunPgAsync(asRoot, Path.Combine(bin, "pg_ctl"),
-            $"-D {data} -l {Path.Combine(root, "server.log")} -w -o \"-c listen_addresses=127.0.0.1 -p {port} -k {root} -c fsync=off -c max_connections=200\" start");
-        AppDomain.CurrentDomain.ProcessExit += (_, _) =>
+            $"-D {data} -l {Path.Combine(root, "server.log")} -w -o \"-c listen_addresses=127.0.0.1 -p {port} -k {root} {durability} -c max_connections={maxConnections}\" start");
+        async Task StopAsync()
         {
             try
             {
-                RunPgAsync(asRoot, Path.Combine(bin, "pg_ctl"), $"-D {data} -m immediate stop").GetAwaiter().GetResult();
+                await RunPgAsync(asRoot, Path.Combine(bin, "pg_ctl"), $"-D {data} -m immediate stop");
                 Directory.Delete(root, recursive: true);
             }
             catch (InvalidOperationException)
@@ -77,8 +93,8 @@ public static class PostgresServer
             catch (IOException)
             {
             }
-        };
-        return $"Host=127.0.0.1;Port={port};Username=postgres;Database=postgres;Include Error Detail=true";
+        }
+        return new Throwaway($"Host=127.0.0.1;Port={port};Username=postgres;Database=postgres;Include Error Detail=true", StopAsync);
     }
 
     private static string? FindBinDir()

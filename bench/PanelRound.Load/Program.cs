@@ -1,0 +1,42 @@
+using System.Globalization;
+
+namespace PanelRound.Load;
+
+/// <summary>Settings of a load run, from <c>--name value</c> pairs.</summary>
+internal sealed record Options(string AppDll, int Experts, int Questions, int Clients, int Kills, double LoadSeconds)
+{
+    public static Options Parse(string[] args)
+    {
+        string? Get(string name)
+        {
+            var i = Array.IndexOf(args, name);
+            return i >= 0 && i + 1 < args.Length ? args[i + 1] : null;
+        }
+        int Int(string name, int fallback) => Get(name) is { } v ? int.Parse(v, CultureInfo.InvariantCulture) : fallback;
+        var app = Get("--app") ?? throw new ArgumentException("--app PATH/TO/PanelRound.Web.dll is required.");
+        return new Options(Path.GetFullPath(app), Int("--experts", 100), Int("--questions", 4), Int("--clients", 16), Int("--kills", 2),
+            Get("--load-seconds") is { } s ? double.Parse(s, CultureInfo.InvariantCulture) : 6);
+    }
+}
+
+/// <summary>
+/// Load and fault drivers for a running PanelRound on PostgreSQL (see bench/README.md):
+/// <c>crash-recovery --app PanelRound.Web.dll [--clients 16] [--experts 100] [--kills 2] [--load-seconds 6]</c>.
+/// </summary>
+public static class LoadProgram
+{
+    public static async Task<int> Main(string[] args)
+    {
+        if (args.Length == 0)
+        {
+            Console.Error.WriteLine("usage: PanelRound.Load crash-recovery --app PATH/TO/PanelRound.Web.dll [--clients N] [--experts N] [--kills N] [--load-seconds S]");
+            return 2;
+        }
+        var options = Options.Parse(args[1..]);
+        return args[0] switch
+        {
+            "crash-recovery" => await CrashRecovery.RunAsync(options),
+            _ => throw new ArgumentException($"Unknown command '{args[0]}'."),
+        };
+    }
+}
