@@ -25,7 +25,7 @@ internal static class CrashRecovery
                 await using var create = new NpgsqlCommand("CREATE DATABASE panelround_crash", admin);
                 await create.ExecuteNonQueryAsync();
             }
-            await using var app = new AppProcess(o.AppDll, db);
+            await using var app = new AppProcess(o.AppDll ?? throw new ArgumentException("--app PATH/TO/PanelRound.Web.dll is required."), db);
             await app.RunCommandAsync("migrate");
             var first = await app.StartAsync();
             Console.WriteLine($"App ready in {first.TotalSeconds:F1} s; setting up {o.Experts} experts x {o.Questions * 5} values.");

@@ -16,13 +16,18 @@ internal sealed record LoadPanel(int PanelId, int[] Questions, string[] Periods,
 
     public int ValuesPerSubmission => Questions.Length * Periods.Length;
 
-    public static async Task<LoadPanel> CreateAsync(AppProcess app, int experts, int questions)
+    /// <summary>A Facilitator API key made by the app's own command (for an app this driver started).</summary>
+    public static async Task<string> ApiKeyAsync(AppProcess app) =>
+        (await app.RunCommandAsync("create-api-key", "--name", "load-driver", "--role", "Facilitator")).Trim().Split('\n')[^1].Trim();
+
+    public static async Task<LoadPanel> CreateAsync(AppProcess app, int experts, int questions) =>
+        await CreateAsync(app.BaseAddress, await ApiKeyAsync(app), experts, questions);
+
+    public static async Task<LoadPanel> CreateAsync(Uri baseAddress, string apiKey, int experts, int questions)
     {
-        var keyOutput = await app.RunCommandAsync("create-api-key", "--name", "load-driver", "--role", "Facilitator");
-        var apiKey = keyOutput.Trim().Split('\n')[^1].Trim();
-        using var staff = new HttpClient { BaseAddress = app.BaseAddress };
+        using var staff = new HttpClient { BaseAddress = baseAddress, Timeout = TimeSpan.FromMinutes(2) };
         staff.DefaultRequestHeaders.Authorization = new AuthenticationHeaderValue("Bearer", apiKey);
-        var indicator = (int)(await PostAsync(staff, "api/indicators", new { key = "load-price", name = "Load test price", unitLabel = "EUR/m²", decimals = 0 }))["id"]!;
+        var indicator = (int)(await PostAsync(staff, "api/indicators", new { key = "load-price-" + Guid.NewGuid().ToString("N")[..8], name = "Load test price", unitLabel = "EUR/m²", decimals = 0 }))["id"]!;
         await PostAsync(staff, $"api/indicators/{indicator}/observations",
             Enumerable.Range(2016, 10).Select(y => new { period = y.ToString(Inv), value = 4000 + (50 * (y - 2016)), source = "load driver" }).ToArray());
         var panel = (int)(await PostAsync(staff, "api/panels", new { title = "Load panel", brief = "Load.", startsOn = "2026-01-05", targetPeriods = "2026-2030" }))["id"]!;
@@ -34,7 +39,7 @@ internal sealed record LoadPanel(int PanelId, int[] Questions, string[] Periods,
         var tokens = new string[experts];
         for (var i = 0; i < experts; i++)
         {
-            var e = (int)(await PostAsync(staff, "api/experts", new { name = $"Load expert {i}", email = $"load{i}@load.example" }))["id"]!;
+            var e = (int)(await PostAsync(staff, "api/experts", new { name = $"Load expert {i}", email = $"load{i}.{indicator}@load.example" }))["id"]!;
             tokens[i] = (string)(await PostAsync(staff, $"api/panels/{panel}/members", new { expertId = e, sendInvitation = false }))["token"]!;
         }
         await PostAsync(staff, $"api/panels/{panel}/rounds", new { closesAt = DateTime.UtcNow.AddDays(7) });

@@ -3,7 +3,7 @@ using System.Globalization;
 namespace PanelRound.Load;
 
 /// <summary>Settings of a load run, from <c>--name value</c> pairs.</summary>
-internal sealed record Options(string AppDll, int Experts, int Questions, int Clients, int Kills, double LoadSeconds)
+internal sealed record Options(string? AppDll, string? Url, string? Connection, string? ApiKey, int Experts, int Questions, int Clients, int Kills, double LoadSeconds, int Pairs)
 {
     public static Options Parse(string[] args)
     {
@@ -13,15 +13,16 @@ internal sealed record Options(string AppDll, int Experts, int Questions, int Cl
             return i >= 0 && i + 1 < args.Length ? args[i + 1] : null;
         }
         int Int(string name, int fallback) => Get(name) is { } v ? int.Parse(v, CultureInfo.InvariantCulture) : fallback;
-        var app = Get("--app") ?? throw new ArgumentException("--app PATH/TO/PanelRound.Web.dll is required.");
-        return new Options(Path.GetFullPath(app), Int("--experts", 100), Int("--questions", 4), Int("--clients", 16), Int("--kills", 2),
-            Get("--load-seconds") is { } s ? double.Parse(s, CultureInfo.InvariantCulture) : 6);
+        return new Options(Get("--app") is { } app ? Path.GetFullPath(app) : null, Get("--url"), Get("--connection"), Get("--api-key"),
+            Int("--experts", 100), Int("--questions", 4), Int("--clients", 16), Int("--kills", 2),
+            Get("--load-seconds") is { } s ? double.Parse(s, CultureInfo.InvariantCulture) : 6, Int("--pairs", 3));
     }
 }
 
 /// <summary>
 /// Load and fault drivers for a running PanelRound on PostgreSQL (see bench/README.md):
-/// <c>crash-recovery --app PanelRound.Web.dll [--clients 16] [--experts 100] [--kills 2] [--load-seconds 6]</c>.
+/// <c>crash-recovery --app PanelRound.Web.dll [--clients 16] [--experts 100] [--kills 2] [--load-seconds 6]</c>;
+/// <c>throughput (--app PanelRound.Web.dll | --url URL --connection CS --api-key KEY) [--experts 500] [--questions 4] [--clients 32] [--pairs 3]</c>.
 /// </summary>
 public static class LoadProgram
 {
@@ -30,12 +31,14 @@ public static class LoadProgram
         if (args.Length == 0)
         {
             Console.Error.WriteLine("usage: PanelRound.Load crash-recovery --app PATH/TO/PanelRound.Web.dll [--clients N] [--experts N] [--kills N] [--load-seconds S]");
+            Console.Error.WriteLine("       PanelRound.Load throughput (--app PATH/TO/PanelRound.Web.dll | --url URL --connection CS --api-key KEY) [--experts N] [--questions N] [--clients N] [--pairs N]");
             return 2;
         }
         var options = Options.Parse(args[1..]);
         return args[0] switch
         {
             "crash-recovery" => await CrashRecovery.RunAsync(options),
+            "throughput" => await Throughput.RunAsync(options),
             _ => throw new ArgumentException($"Unknown command '{args[0]}'."),
         };
     }

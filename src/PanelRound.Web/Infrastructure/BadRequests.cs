@@ -112,6 +112,7 @@ public static class BadRequestSetup
     {
         services.Configure<RouteHandlerOptions>(o => o.ThrowOnBadRequest = true);
         services.AddExceptionHandler<BadRequestProblems>();
+        services.AddExceptionHandler<DatabaseBusyProblems>();
         return services;
     }
 }

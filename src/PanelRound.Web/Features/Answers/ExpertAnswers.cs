@@ -94,22 +94,23 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
 
     /// <summary>Saves a draft or a submission for the membership's open round, all-or-nothing.</summary>
     /// <remarks>
-    /// Implementation note: the save first updates the round row on the condition that it is
-    /// still open, in the same transaction as the new rows. Closing a round takes the same row
-    /// first (<see cref="RoundLifecycle.CloseRoundAsync"/>), so a submission either lands before the
-    /// close reads the answers or is refused with a conflict: never acknowledged and then missed.
-    /// Submissions only queue behind each other on that row; they do not fail.
+    /// Implementation note: the save first locks the round row on the condition that it is still
+    /// open, in the same transaction as the new rows. On PostgreSQL the lock is shared
+    /// (<c>FOR SHARE</c>): submissions to one round run side by side, while the close, which
+    /// updates the row (<see cref="RoundLifecycle.CloseRoundAsync"/>), waits for those in flight, and
+    /// those that come after it find the round closed. SQLite has one writer, so there the save
+    /// takes the row with a no-op update. Either way a submission lands before the close reads the
+    /// answers or is refused with a conflict: never acknowledged and then missed.
     /// </remarks>
-    /// <param name="membershipId">The expert's membership.</param>
+    /// <param name="m">The expert's membership, as the request's credential resolved it (not read again).</param>
     /// <param name="input">The answers.</param>
     /// <param name="idempotencyKey">
     /// An optional key chosen by the client: a second call with the same key and the same answers
     /// returns the first call's receipt and adds nothing; the same key with different answers is refused.
     /// </param>
-    public async Task<Result<SubmissionReceipt>> SubmitAsync(int membershipId, SubmissionInput input, string? idempotencyKey = null)
+    public async Task<Result<SubmissionReceipt>> SubmitAsync(PanelMembership m, SubmissionInput input, string? idempotencyKey = null)
     {
         db.ChangeTracker.Clear();
-        var m = await db.Memberships.SingleAsync(x => x.Id == membershipId);
         if (m.State == MembershipState.Revoked)
         {
             return Result<SubmissionReceipt>.NotFound("This personal link is unknown or has been revoked.");
@@ -139,8 +140,12 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
         }
         await using var tx = await db.Database.BeginTransactionAsync();
         var deadlineCheck = Now;
-        var stillOpen = await db.Rounds.Where(r => r.Id == round.Id && r.State == RoundState.Open && r.ClosesAt > deadlineCheck)
-            .ExecuteUpdateAsync(u => u.SetProperty(r => r.Version, r => r.Version));
+        var stillOpen = db.Database.IsNpgsql()
+            ? (await db.Database.SqlQuery<int>(
+                $"""SELECT 1 AS "Value" FROM "Rounds" WHERE "Id" = {round.Id} AND "State" = {(int)RoundState.Open} AND "ClosesAt" > {deadlineCheck} FOR SHARE""")
+                .ToListAsync()).Count
+            : await db.Rounds.Where(r => r.Id == round.Id && r.State == RoundState.Open && r.ClosesAt > deadlineCheck)
+                .ExecuteUpdateAsync(u => u.SetProperty(r => r.Version, r => r.Version));
         var stillMember = await db.Memberships.Where(x => x.Id == m.Id && x.State != MembershipState.Revoked && x.TokenHash == m.TokenHash)
             .ExecuteUpdateAsync(u => u.SetProperty(x => x.LastSeenAt, deadlineCheck)
                 .SetProperty(x => x.State, x => x.State == MembershipState.Invited ? MembershipState.Active : x.State));

@@ -1,4 +1,5 @@
 using Microsoft.AspNetCore.Http.HttpResults;
+using Microsoft.EntityFrameworkCore;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
 using PanelRound.Web.Infrastructure;
@@ -19,6 +20,8 @@ public static class ExpertApi
         var g = app.MapGroup("/api/expert").WithTags("Expert").DisableAntiforgery().AddEndpointFilter(async (ctx, next) =>
         {
             var db = ctx.HttpContext.RequestServices.GetRequiredService<PanelRoundDbContext>();
+            // One connection for the whole request (closed when the request's context is disposed), not one per query.
+            await db.Database.OpenConnectionAsync(ctx.HttpContext.RequestAborted);
             var m = await ExpertAccess.CurrentAsync(ctx.HttpContext, db);
             if (m is null)
             {
@@ -76,6 +79,6 @@ public static class ExpertApi
                 return TypedResults.ValidationProblem(new Dictionary<string, string[]> { [SubmissionKeys.Header] = [problem] }, title: "The input has errors.");
             }
         }
-        return (await answers.SubmitAsync(m.Id, input, key)).ToOk(r => r);
+        return (await answers.SubmitAsync(m, input, key)).ToOk(r => r);
     }
 }

@@ -137,7 +137,7 @@ public class IndexModel(PanelRoundDbContext db, ExpertAnswers answers, ExpertBen
         if (ModelState.ErrorCount == 0)
         {
             var key = FormKey is { } k && SubmissionKeys.Problem(k) is null ? k : null;
-            var result = await answers.SubmitAsync(m.Id, input, key);
+            var result = await answers.SubmitAsync(m, input, key);
             if (result.Errors.ContainsKey(SubmissionKeys.Header))
             {
                 // The form was sent before with other answers (a page restored from the browser's history).
