@@ -111,6 +111,47 @@ public sealed class DemoInTheBrowserTests : IAsyncLifetime
         Assert.True(blocked.Count == 0, string.Join("\n", blocked));
     }
 
+    [SkippableFact]
+    public async Task PrivateRelationNote_TheExpertWhoseOwnAnswersImplyAnOutOfRangeYieldSeesIt_NoOtherExpertDoes()
+    {
+        Skip.If(_browser is null && !IsCi, $"Browser test NOT RUN: {Chromium} is missing (apt-get install -y chromium). Under CI=true this is a failure.");
+        Assert.True(_browser is not null, $"{Chromium} is missing: install Debian's chromium package.");
+        var scenario = DemoScenario.Read(Path.Combine(AppContext.BaseDirectory, "demo-data")).AsOf(DateTime.UtcNow);
+        var open = scenario.Panels.Single(p => !p.Concluded);
+        var yieldQuestion = open.Questions.Single(q => q.Indicator == "office-yield-prime");
+
+        // From the demo files, with plain arithmetic: the yield implied by an expert's own latest rent and capital value
+        // (income capitalisation: yield = 12 × monthly rent / capital value, in %), against the yield question's plausible range.
+        double? Own(DemoMember m, string indicator, string period) => scenario.Estimates
+            .Where(e => e.Panel == open.Key && e.Expert == m.Expert && e.Indicator == indicator && e.Period == period)
+            .OrderByDescending(e => e.Round).FirstOrDefault()?.P50;
+        var outside = open.Members.SelectMany(m => open.TargetPeriods.Split(',')
+            .Select(t => (Member: m, Period: t, Implied: Own(m, "office-rent-prime", t) is { } r && Own(m, "office-value-prime", t) is { } v ? r * 12 / v / 0.01 : (double?)null))
+            .Where(x => x.Implied < yieldQuestion.PlausibleMin || x.Implied > yieldQuestion.PlausibleMax)).ToList();
+        var member = Assert.Single(outside.Select(x => x.Member).Distinct());
+        var first = outside.First(x => x.Member == member);
+
+        var expert = await _browser!.NewPageAsync();
+        await expert.GotoAsync($"{_base}/e/{member.Token}");
+        await Assertions.Expect(expert.Locator("h1")).ToHaveTextAsync(open.Title);
+        var note = expert.Locator(".private-note").Filter(new() { HasText = $"Private note, {first.Period}:" });
+        await Assertions.Expect(note).ToBeVisibleAsync();
+        await Assertions.Expect(note).ToContainTextAsync($"imply {yieldQuestion.Label} of {first.Implied!.Value.ToString("N2", System.Globalization.CultureInfo.InvariantCulture)}");
+        await Assertions.Expect(note).ToContainTextAsync("only you see this note");
+        await note.ScrollIntoViewIfNeededAsync();
+        await expert.ScreenshotAsync(new PageScreenshotOptions { Path = Path.Combine(Path.GetTempPath(), "panelround-expert-private-note.png"), FullPage = true });
+
+        // Every other expert of the panel, each in a browser of their own: their page, and no note.
+        foreach (var other in open.Members.Where(m => m != member))
+        {
+            var page = await _browser.NewPageAsync();
+            await page.GotoAsync($"{_base}/e/{other.Token}");
+            await Assertions.Expect(page.Locator("h1")).ToHaveTextAsync(open.Title);
+            await Assertions.Expect(page.Locator(".private-note")).ToHaveCountAsync(0);
+            await page.Context.CloseAsync();
+        }
+    }
+
     public async Task DisposeAsync()
     {
         if (_browser is not null)

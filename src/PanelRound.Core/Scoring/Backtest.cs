@@ -34,7 +34,8 @@ public sealed record BacktestAnswer
 /// <param name="Outcome">The outcome, finite.</param>
 /// <param name="Scale">The error scale; when not finite and positive the target is shown but not scored.</param>
 /// <param name="Answers">At least one answer, all points or all ranges, at most one per expert.</param>
-public sealed record BacktestTarget(string QuestionKey, string Period, double Outcome, double Scale, IReadOnlyList<BacktestAnswer> Answers);
+/// <param name="NaiveForecast">The no-change forecast (<see cref="ScoredItem.NaiveForecast"/>); NaN when unavailable, which leaves the target out of the skill against it.</param>
+public sealed record BacktestTarget(string QuestionKey, string Period, double Outcome, double Scale, IReadOnlyList<BacktestAnswer> Answers, double NaiveForecast = double.NaN);
 
 /// <summary>A past panel to backtest.</summary>
 /// <param name="PanelKey">The panel's key.</param>
@@ -47,7 +48,7 @@ public sealed record BacktestPanel(string PanelKey, DateOnly ClosedOn, IReadOnly
     /// question-period, ordered by closing day then panel key.
     /// </summary>
     /// <param name="items">Expert items (not consensus items); the items of one panel must agree on its closing day.</param>
-    /// <remarks>The first item of a question-period supplies its outcome and scale; a range item becomes a range answer.</remarks>
+    /// <remarks>The first item of a question-period supplies its outcome, scale and no-change forecast; a range item becomes a range answer.</remarks>
     public static IReadOnlyList<BacktestPanel> FromItems(IReadOnlyList<ScoredItem> items)
     {
         ScoredItem.CheckItems(items, nameof(items));
@@ -69,7 +70,8 @@ public sealed record BacktestPanel(string PanelKey, DateOnly ClosedOn, IReadOnly
                     t.First().Scale,
                     [.. t.Select(i => i is { P10: { } p10, P50: { } p50, P90: { } p90 }
                         ? BacktestAnswer.OfRange(i.ExpertKey, new RangeAnswer(p10, p50, p90))
-                        : BacktestAnswer.Point(i.ExpertKey, i.Value!.Value))]))
+                        : BacktestAnswer.Point(i.ExpertKey, i.Value!.Value))],
+                    t.First().NaiveForecast))
                 .OrderBy(t => t.QuestionKey, StringComparer.Ordinal)
                 .ThenBy(t => t.Period, PeriodOrder.Instance)
                 .ToList();
@@ -128,6 +130,22 @@ public sealed record BacktestTargetResult(
     double? EqualScaledError,
     double? WeightedScaledError);
 
+/// <summary>A rebuilt consensus of a backtested panel against the no-change forecast and against the benchmarks.</summary>
+/// <param name="Consensus">
+/// The consensus scored like an expert (<see cref="ForecastErrors.Summarise"/> of one point item per question-period):
+/// its <see cref="ErrorSummary.ScaledSkill"/> is the skill against no change, on the <see cref="ErrorSummary.NScaledNaive"/>
+/// question-periods with a scale and a no-change forecast, and <see cref="ErrorSummary.ScaledNaiveMae"/> is the no-change forecast's scaled MAE there.
+/// </param>
+/// <param name="Benchmarks">The consensus against the benchmarks on its scaled question-periods (<see cref="BenchmarkSkill.Compare"/>).</param>
+public sealed record BacktestSkill(ErrorSummary Consensus, BenchmarkComparison Benchmarks)
+{
+    /// <summary>1 − scaled MAE of the consensus / of the no-change forecast; null without such question-periods.</summary>
+    public double? SkillVsNaive => Consensus.ScaledSkill;
+
+    /// <summary>1 − scaled MAE of the consensus / of the best benchmark; null without a benchmark covering every question-period.</summary>
+    public double? SkillVsBest => Benchmarks.SkillVsBest;
+}
+
 /// <summary>The backtest of one panel.</summary>
 /// <param name="PanelKey">The panel's key.</param>
 /// <param name="ClosedOn">The day it closed.</param>
@@ -136,6 +154,8 @@ public sealed record BacktestTargetResult(
 /// <param name="RangeWeights">The weights used for its range questions (scaled interval score records); null when it has none.</param>
 /// <param name="Comparison">Equal against weighted over its scored question-periods.</param>
 /// <param name="Targets">Its question-periods, by question key then period.</param>
+/// <param name="EqualSkill">The equal-weight consensus against no change and the benchmarks.</param>
+/// <param name="WeightedSkill">The track-record-weighted consensus against no change and the benchmarks.</param>
 public sealed record BacktestPanelResult(
     string PanelKey,
     DateOnly ClosedOn,
@@ -143,7 +163,9 @@ public sealed record BacktestPanelResult(
     WeightSet? PointWeights,
     WeightSet? RangeWeights,
     BacktestComparison Comparison,
-    IReadOnlyList<BacktestTargetResult> Targets);
+    IReadOnlyList<BacktestTargetResult> Targets,
+    BacktestSkill? EqualSkill = null,
+    BacktestSkill? WeightedSkill = null);
 
 /// <summary>The backtest of every panel, and pooled over all their question-periods.</summary>
 /// <param name="Panels">Per panel, by closing day then panel key.</param>
@@ -165,6 +187,12 @@ public sealed record BacktestResult(IReadOnlyList<BacktestPanelResult> Panels, B
 /// settings, without weights (equal) and with the experts' weights (weighted); the point scored
 /// is the consensus value (the central value for ranges). Error = |value − outcome| / scale,
 /// after Hyndman &amp; Koehler (2006); question-periods without a valid scale are listed but not scored.</para>
+/// <para>Skill: each rebuilt consensus (equal and weighted) is scored like an expert, one point item per
+/// question-period with the target's outcome, scale and no-change forecast, and compared with the no-change
+/// forecast (<see cref="ErrorSummary.ScaledSkill"/>) and with the benchmark forecasts of the same panel
+/// (<see cref="BenchmarkSkill.Compare"/>): the same rules as the scorecard's, applied per past panel. The
+/// benchmarks come from the reference series before the panel's start, so they look no further ahead
+/// than the panel did.</para>
 /// <para>The published evidence on whether weighting beats the simple average is mixed; the
 /// result reports both figures and their difference and draws no conclusion.</para>
 /// </remarks>
@@ -193,16 +221,27 @@ public static class Backtest
     public static BacktestResult Run(IReadOnlyList<BacktestPanel> panels, IReadOnlyList<ScoredItem> history, BacktestOptions options) =>
         Run(panels, history, options, static (item, panel) => IsKnownBefore(item, panel.ClosedOn));
 
+    /// <summary>Backtests the given panels and sets each rebuilt consensus against the benchmarks of its panel.</summary>
+    /// <param name="panels">The panels to backtest.</param>
+    /// <param name="history">Every scored expert item (any panel, any round); filtered per panel by <see cref="IsKnownBefore"/>.</param>
+    /// <param name="options">Consensus settings and k.</param>
+    /// <param name="benchmarkItems">The benchmarks' items (one per benchmark key, panel, question and period); each panel uses its own.</param>
+    public static BacktestResult Run(IReadOnlyList<BacktestPanel> panels, IReadOnlyList<ScoredItem> history, BacktestOptions options, IReadOnlyList<ScoredItem> benchmarkItems) =>
+        Run(panels, history, options, static (item, panel) => IsKnownBefore(item, panel.ClosedOn), benchmarkItems);
+
     /// <summary>The backtest with a chosen history filter; the public overloads use <see cref="IsKnownBefore"/>.</summary>
     internal static BacktestResult Run(
         IReadOnlyList<BacktestPanel> panels,
         IReadOnlyList<ScoredItem> history,
         BacktestOptions options,
-        Func<ScoredItem, BacktestPanel, bool> usableForWeights)
+        Func<ScoredItem, BacktestPanel, bool> usableForWeights,
+        IReadOnlyList<ScoredItem>? benchmarkItems = null)
     {
         ArgumentNullException.ThrowIfNull(panels);
         ScoredItem.CheckItems(history, nameof(history));
         ArgumentNullException.ThrowIfNull(options);
+        benchmarkItems ??= [];
+        ScoredItem.CheckItems(benchmarkItems, nameof(benchmarkItems));
 
         var results = new List<BacktestPanelResult>(panels.Count);
         int pooledN = 0;
@@ -224,6 +263,8 @@ public static class Backtest
                 : null;
 
             var targets = new List<BacktestTargetResult>(panel.Targets.Count);
+            var equalItems = new List<ScoredItem>(panel.Targets.Count);
+            var weightedItems = new List<ScoredItem>(panel.Targets.Count);
             int n = 0;
             double sumEqual = 0, sumWeighted = 0;
             foreach (var target in panel.Targets.OrderBy(t => t.QuestionKey, StringComparer.Ordinal).ThenBy(t => t.Period, PeriodOrder.Instance))
@@ -257,17 +298,46 @@ public static class Backtest
 
                 targets.Add(new BacktestTargetResult(
                     target.QuestionKey, target.Period, target.Outcome, target.Scale, isRange, equal, weighted, equalError, weightedError));
+                if (double.IsFinite(equal.Value) && double.IsFinite(weighted.Value))
+                {
+                    equalItems.Add(ConsensusItem(panel, target, equal.Value));
+                    weightedItems.Add(ConsensusItem(panel, target, weighted.Value));
+                }
             }
+
+            var panelBenchmarks = benchmarkItems.Where(i => string.Equals(i.PanelKey, panel.PanelKey, StringComparison.Ordinal)).ToList();
 
             pooledN += n;
             pooledEqual += sumEqual;
             pooledWeighted += sumWeighted;
             results.Add(new BacktestPanelResult(
-                panel.PanelKey, panel.ClosedOn, known.Count, pointWeights, rangeWeights, Comparison(n, sumEqual, sumWeighted), targets));
+                panel.PanelKey, panel.ClosedOn, known.Count, pointWeights, rangeWeights, Comparison(n, sumEqual, sumWeighted), targets,
+                Skill(equalItems, panelBenchmarks), Skill(weightedItems, panelBenchmarks)));
         }
 
         return new BacktestResult(results, Comparison(pooledN, pooledEqual, pooledWeighted));
     }
+
+    private static BacktestSkill Skill(IReadOnlyList<ScoredItem> consensus, IReadOnlyList<ScoredItem> benchmarks) =>
+        new(ForecastErrors.Summarise(consensus), BenchmarkSkill.Compare(consensus, benchmarks));
+
+    /// <summary>A rebuilt consensus value as a final-round point item of its question-period.</summary>
+    /// <remarks>Implementation note: the round and the outcome's date enter no score; the item only carries what scoring reads.</remarks>
+    private static ScoredItem ConsensusItem(BacktestPanel panel, BacktestTarget target, double value) => new()
+    {
+        ExpertKey = "consensus",
+        QuestionKey = target.QuestionKey,
+        PanelKey = panel.PanelKey,
+        Period = target.Period,
+        Round = 1,
+        IsFinalRound = true,
+        Value = value,
+        Outcome = target.Outcome,
+        Scale = target.Scale,
+        NaiveForecast = target.NaiveForecast,
+        PanelClosedOn = panel.ClosedOn,
+        OutcomeKnownOn = panel.ClosedOn,
+    };
 
     private static BacktestComparison Comparison(int n, double sumEqual, double sumWeighted) =>
         n == 0 ? new BacktestComparison(0, null, null) : new BacktestComparison(n, sumEqual / n, sumWeighted / n);

@@ -38,8 +38,15 @@ public sealed record DemoMember(string Expert, string PanelCode, string Token);
 
 public sealed record DemoRound(int Number, DateTime OpensAt, DateTime ClosesAt, bool Closed);
 
+/// <summary>A term of a demo relation: a question of the panel (by its indicator) with a name and the unit factor.</summary>
+public sealed record DemoRelationTerm(string Indicator, string Label, double Factor);
+
+/// <summary>A relation declared on a demo panel: <c>Product</c> (result = first × second) or <c>Sum</c>.</summary>
+public sealed record DemoRelation(string Shape, DemoRelationTerm Result, DemoRelationTerm First, DemoRelationTerm Second);
+
 public sealed record DemoPanel(string Key, string Title, string Brief, DateOnly StartsOn, string TargetPeriods,
-    bool Concluded, IReadOnlyList<DemoQuestion> Questions, IReadOnlyList<DemoMember> Members, IReadOnlyList<DemoRound> Rounds);
+    bool Concluded, IReadOnlyList<DemoQuestion> Questions, IReadOnlyList<DemoMember> Members, IReadOnlyList<DemoRound> Rounds,
+    IReadOnlyList<DemoRelation>? Relations = null);
 
 /// <summary>
 /// The demo scenario as files: CSV for the tables a firm would recognise (indicators,

@@ -209,6 +209,7 @@ public static class DemoGenerator
         var indicatorList = AllSeries.Select(s => new DemoIndicator(s.Key, s.Name, s.Unit, s.Decimals, s.Description)).ToList();
         var running = Plans.Single(p => !p.Concluded).Key;
         DemoCalibration.Add(seed, running, [.. Traits.Select(t => (t.Key, t.Bias, t.Noise, t.Width, t.Herding))], indicatorList, observations, panels, estimates);
+        DemoRelations.Add(seed, running, indicatorList, observations, panels, estimates);
 
         var experts = Traits.Select(t => new DemoExpert(t.Key, t.Name, Email(t.Name), t.Affiliation, t.Expertise, t.Interests, t.Profile)).ToList();
         var indicators = indicatorList;

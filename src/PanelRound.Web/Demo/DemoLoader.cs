@@ -3,6 +3,7 @@ using Microsoft.EntityFrameworkCore;
 using PanelRound.Core.Domain;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
+using PanelRound.Web.Features.Relations;
 using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Demo;
@@ -124,6 +125,17 @@ public sealed class DemoLoader(PanelRoundDbContext db, UserManager<StaffUser> us
             }
             Audit.Record(db, "demo", "panel.created", "Panel", panel.Id, panel.Id, new { panel.Title }, panel.CreatedAt);
             await db.SaveChangesAsync();
+            // Relations through the app's own use case: its rules and its audit event.
+            var relations = services.GetRequiredService<PanelRelations>();
+            RelationTermInput Term(DemoRelationTerm t) => new(questionByIndicator[t.Indicator].Id, t.Label, null, t.Factor);
+            foreach (var r in p.Relations ?? [])
+            {
+                var declared = await relations.AddAsync(panel.Id, new RelationInput(r.Shape, Term(r.Result), Term(r.First), Term(r.Second)), "demo");
+                if (!declared.IsOk)
+                {
+                    throw new InvalidOperationException($"Demo: the relation of {p.Key} was refused: {declared.Message} {string.Join(" ", declared.Errors.SelectMany(e => e.Value))}");
+                }
+            }
             await DemoRoundReplay.ReplayAsync(services, panel, p);
         }
         Audit.Record(db, "demo", "demo.loaded", "Database", "demo", details: new { panels = scenario.Panels.Count, estimates = scenario.Estimates.Count }, at: now);

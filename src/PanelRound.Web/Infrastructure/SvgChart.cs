@@ -155,7 +155,7 @@ public static class SvgChart
         return -1;
     }
 
-    private static string F(double v, int decimals) => v.ToString("N" + decimals.ToString(CultureInfo.InvariantCulture), CultureInfo.InvariantCulture);
+    private static string F(double v, int decimals) => NumberText.Fixed(v, decimals);
 
     private static string Esc(string s) => WebUtility.HtmlEncode(s);
 

@@ -58,10 +58,9 @@ public static class PageSupport
     }
 
     /// <summary>A number for display with the indicator's decimals, in the invariant culture.</summary>
-    public static string Num(double? v, int decimals) =>
-        v is { } x ? x.ToString("N" + decimals.ToString(CultureInfo.InvariantCulture), CultureInfo.InvariantCulture) : "–";
+    public static string Num(double? v, int decimals) => NumberText.Fixed(v, decimals);
 
-    public static string Pct(double? v) => v is { } x ? (x * 100).ToString("0.0", CultureInfo.InvariantCulture) + "%" : "–";
+    public static string Pct(double? v) => NumberText.Percent(v, 1);
 
     /// <summary>A value for an input field (invariant, full precision).</summary>
     public static string Raw(double? v) => v?.ToString("R", CultureInfo.InvariantCulture) ?? "";

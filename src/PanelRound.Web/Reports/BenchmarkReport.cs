@@ -1,7 +1,7 @@
-using System.Globalization;
 using PanelRound.Core.Domain;
 using PanelRound.Web.Features.Benchmarks;
 using PanelRound.Web.Features.Relations;
+using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Reports;
 
@@ -22,12 +22,40 @@ public static class BenchmarkReport
 
     public static string ColourOf(string method) => Colours.GetValueOrDefault(method, "#555555");
 
-    /// <summary>The chart layer: each available benchmark's path as a thin dashed line.</summary>
-    public static IReadOnlyList<ChartSeries> ChartLayer(QuestionBenchmarksDto? question) =>
-        question is null ? [] : question.Benchmarks.Where(b => b.Available && b.Path.Count > 0)
-            .Select(b => new ChartSeries("Benchmark: " + b.Name, SeriesKind.Line, ColourOf(b.Method),
-                b.Path.Select(p => new ChartPoint(Period.Parse(p.Period), p.Value)).ToList(), Dashed: true))
+    /// <summary>The series key of a benchmark in a chart (the page's controls show and hide it by this key).</summary>
+    public static string SeriesKey(string method) => "benchmark:" + method;
+
+    /// <summary>
+    /// The benchmark with the best in-sample fit: the lowest root mean squared one-step error on the reference series
+    /// (ties by method key); null when no benchmark has one.
+    /// </summary>
+    public static BenchmarkDto? BestFit(QuestionBenchmarksDto? question) =>
+        question?.Benchmarks.Where(b => b.Available && b.Path.Count > 0 && b.InSampleRmse is { } r && double.IsFinite(r))
+            .OrderBy(b => b.InSampleRmse).ThenBy(b => b.Method, StringComparer.Ordinal).FirstOrDefault();
+
+    /// <summary>True for the benchmarks a chart draws unless asked otherwise: no change, and the best in-sample fit.</summary>
+    public static bool DrawnByDefault(QuestionBenchmarksDto question, BenchmarkDto benchmark) =>
+        benchmark.Method == "naive" || benchmark.Method == BestFit(question)?.Method;
+
+    /// <summary>
+    /// The chart layer: each available benchmark's path as a thin dashed line. Shown are the no-change forecast and
+    /// the benchmark with the best in-sample fit (<see cref="BestFit"/>); the others are hidden series (the page's
+    /// table lists them all and can show each on the chart; the dossier's table lists them).
+    /// </summary>
+    /// <remarks>Implementation note: six dashed lines over the rounds' bands hid the panel's own answers and filled the legend with six rows.</remarks>
+    public static IReadOnlyList<ChartSeries> ChartLayer(QuestionBenchmarksDto? question)
+    {
+        if (question is null)
+        {
+            return [];
+        }
+        var best = BestFit(question)?.Method;
+        return question.Benchmarks.Where(b => b.Available && b.Path.Count > 0)
+            .Select(b => new ChartSeries("Benchmark: " + b.Name + (b.Method == best && b.Method != "naive" ? " (best in-sample fit)" : ""), SeriesKind.Line, ColourOf(b.Method),
+                b.Path.Select(p => new ChartPoint(Period.Parse(p.Period), p.Value)).ToList(), Dashed: true,
+                Hidden: !DrawnByDefault(question, b), Key: SeriesKey(b.Method)))
             .ToList();
+    }
 
     /// <summary>The benchmark table of a question in the dossier: per method, the path with its P10-P90 and the in-sample RMSE.</summary>
     public static void Table(PdfReport pdf, QuestionBenchmarksDto? question)
@@ -38,6 +66,7 @@ public static class BenchmarkReport
         }
         var periods = question.Benchmarks.Where(b => b.Available).SelectMany(b => b.Path.Select(p => p.Period)).Distinct().OrderBy(p => Period.Parse(p)).ToList();
         pdf.Paragraph($"Statistical benchmarks from the reference series ({question.ReferenceN} observations, {question.ReferenceFrom} to {question.ReferenceTo}): point forecast and 80% interval (P10 – P90)", 9.5, bold: true);
+        pdf.Paragraph("The chart draws no change and the benchmark with the best in-sample fit (lowest one-step RMSE); the table lists them all.", 8, colour: "#555555");
         var d = question.Decimals;
         pdf.Table(["Benchmark", .. periods, "In-sample RMSE"],
             question.Benchmarks.Where(b => b.Available).Select(b => (IReadOnlyList<string>)
@@ -71,12 +100,12 @@ public static class BenchmarkReport
                 : $"Only two of the three are asked: the {c.DerivedRole} term is derived from the consensus of the other two (marked as derived in the exports).", 8.5);
             pdf.Table(["Period", c.Relation.Result.Label, c.Relation.First.Label, c.Relation.Second.Label, "Implied result", "Difference", "Flag"],
                 c.Periods.Select(p => (IReadOnlyList<string>)[p.Period, G(p.Result), G(p.First), G(p.Second), G(p.ImpliedResult),
-                    p.RelativeDifference is { } r ? (r * 100).ToString("+0.0;-0.0;0.0", CultureInfo.InvariantCulture) + "%" : "–", p.Flagged ? "CHECK" : ""]).ToList(),
+                    NumberText.SignedPercent(p.RelativeDifference), p.Flagged ? "CHECK" : ""]).ToList(),
                 [0.8, 1.3, 1.3, 1.3, 1.3, 1, 0.7], new HashSet<int> { 1, 2, 3, 4, 5 });
         }
     }
 
-    private static string F(double v, int decimals) => v.ToString("N" + Math.Clamp(decimals, 0, 6).ToString(CultureInfo.InvariantCulture), CultureInfo.InvariantCulture);
+    private static string F(double v, int decimals) => NumberText.Fixed(v, Math.Clamp(decimals, 0, 6));
 
-    private static string G(double? v) => v is { } x ? x.ToString("#,##0.###", CultureInfo.InvariantCulture) : "–";
+    private static string G(double? v) => v is { } x && double.IsFinite(x) ? NumberText.Format(x, "#,##0.###") : NumberText.Missing;
 }

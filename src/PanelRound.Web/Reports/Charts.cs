@@ -2,6 +2,7 @@ using System.Globalization;
 using System.Net;
 using System.Text;
 using PanelRound.Core.Domain;
+using PanelRound.Web.Infrastructure;
 using PdfSharp.Drawing;
 
 namespace PanelRound.Web.Reports;
@@ -19,8 +20,18 @@ public enum SeriesKind
 /// <summary>One value of a series at a period; Low and High for bands.</summary>
 public readonly record struct ChartPoint(Period Period, double Value, double? Low = null, double? High = null);
 
-/// <summary>A named series: every series appears in the legend with its colour and mark.</summary>
-public sealed record ChartSeries(string Label, SeriesKind Kind, string Colour, IReadOnlyList<ChartPoint> Points, bool Dashed = false);
+/// <summary>A named series: every shown series appears in the legend with its colour and mark.</summary>
+/// <param name="Label">The legend's text.</param>
+/// <param name="Kind">Line or band.</param>
+/// <param name="Colour">The colour, #rrggbb.</param>
+/// <param name="Points">The values by period.</param>
+/// <param name="Dashed">A dashed line (benchmarks).</param>
+/// <param name="Hidden">
+/// Not shown until the reader asks: left out of the printed drawing and its legend, and in the page's SVG drawn
+/// into a hidden group that a control can show (<see cref="Key"/>); the value axis leaves room for it there.
+/// </param>
+/// <param name="Key">A name for the series' group in the SVG (<c>data-series</c>), so a page control can show or hide it; null for none.</param>
+public sealed record ChartSeries(string Label, SeriesKind Kind, string Colour, IReadOnlyList<ChartPoint> Points, bool Dashed = false, bool Hidden = false, string? Key = null);
 
 /// <summary>
 /// One chart model for pages (SVG) and reports (PDF vector drawing): a real time axis (periods at
@@ -29,18 +40,40 @@ public sealed record ChartSeries(string Label, SeriesKind Kind, string Colour, I
 /// </summary>
 public sealed record ChartModel(string Title, string Unit, int Decimals, IReadOnlyList<ChartSeries> Series)
 {
-    /// <summary>The drawing in abstract shapes, laid out for a width and height in points (1/72 in, or CSS px for SVG).</summary>
-    public IReadOnlyList<Shape> Layout(double width, double height) => ChartLayout.Build(this, width, height);
+    /// <summary>The printed drawing in abstract shapes (hidden series left out), laid out for a width and height in points (1/72 in).</summary>
+    public IReadOnlyList<Shape> Layout(double width, double height) => ChartLayout.Build(this, width, height, withHidden: false);
 
-    /// <summary>An accessible SVG element (role img, a title, and a text alternative).</summary>
+    /// <summary>
+    /// An accessible SVG element (role img, a title, and a text alternative). A series with a <see cref="ChartSeries.Key"/>
+    /// is drawn into its own group (<c>&lt;g data-series="key"&gt;</c>), hidden when the series is; the height grows
+    /// by a row for each legend row beyond two, so a long legend never squeezes the plot.
+    /// </summary>
     public string ToSvg(double width = 640, double height = 260)
     {
+        height += Math.Max(0, ChartLayout.LegendRowCount(this, width) - 2) * ChartLayout.LegendRow;
         var sb = new StringBuilder();
         sb.Append(Inv($"<svg xmlns=\"http://www.w3.org/2000/svg\" viewBox=\"0 0 {width:0} {height:0}\" width=\"100%\" role=\"img\" aria-label=\"{Esc(Title)}\" font-family=\"DejaVu Sans, Arial, sans-serif\">"));
         sb.Append("<title>").Append(Esc(Title)).Append("</title>");
-        foreach (var s in Layout(width, height))
+        string? group = null;
+        foreach (var s in ChartLayout.Build(this, width, height, withHidden: true))
         {
+            if (s.Series != group)
+            {
+                if (group is not null)
+                {
+                    sb.Append("</g>");
+                }
+                if (s.Series is not null)
+                {
+                    sb.Append("<g data-series=\"").Append(Esc(s.Series)).Append('"').Append(s.Hidden ? " visibility=\"hidden\">" : ">");
+                }
+                group = s.Series;
+            }
             sb.Append(s.ToSvg());
+        }
+        if (group is not null)
+        {
+            sb.Append("</g>");
         }
         sb.Append("</svg>");
         return sb.ToString();
@@ -66,6 +99,12 @@ public sealed record ChartModel(string Title, string Unit, int Decimals, IReadOn
 /// <summary>A primitive of a laid-out chart, drawn the same way to SVG and to PDF.</summary>
 public abstract record Shape
 {
+    /// <summary>The key of the series the shape belongs to (<see cref="ChartSeries.Key"/>), or null.</summary>
+    public string? Series { get; init; }
+
+    /// <summary>True when the shape's series is hidden until the reader shows it (SVG only).</summary>
+    public bool Hidden { get; init; }
+
     public abstract string ToSvg();
 
     public abstract void Draw(XGraphics gfx);
@@ -126,7 +165,10 @@ public sealed record TextShape(double X, double Y, string Text, double Size, str
 /// <summary>Lays a <see cref="ChartModel"/> out into shapes.</summary>
 internal static class ChartLayout
 {
-    private const double Left = 58, Right = 12, Top = 26, AxisHeight = 22, LegendRow = 16;
+    /// <summary>The height of a legend row.</summary>
+    public const double LegendRow = 16;
+
+    private const double Left = 58, Right = 12, Top = 26, AxisHeight = 22;
 
     /// <summary>A period's position in time: the middle of its year or quarter, in years.</summary>
     public static double TimeOf(Period p) => p.IsYear ? p.Year + 0.5 : p.Year + ((p.Quarter - 0.5) / 4.0);
@@ -134,10 +176,19 @@ internal static class ChartLayout
     /// <summary>The spacing of consecutive periods of the same kind, in years.</summary>
     private static double StepOf(Period p) => p.IsYear ? 1 : 0.25;
 
-    public static IReadOnlyList<Shape> Build(ChartModel model, double width, double height)
+    /// <summary>The number of legend rows at a width (the shown series only).</summary>
+    public static int LegendRowCount(ChartModel model, double width)
+    {
+        LegendEntries(model.Series.Where(s => !s.Hidden).ToList(), width, out var rows);
+        return rows;
+    }
+
+    /// <summary>The shapes; <paramref name="withHidden"/> draws the hidden series too (marked hidden) and scales the axis to them.</summary>
+    public static IReadOnlyList<Shape> Build(ChartModel model, double width, double height, bool withHidden)
     {
         var shapes = new List<Shape>();
-        var points = model.Series.SelectMany(s => s.Points).ToList();
+        var drawn = model.Series.Where(s => withHidden || !s.Hidden).ToList();
+        var points = drawn.SelectMany(s => s.Points).ToList();
         shapes.Add(new TextShape(Left, 14, model.Unit.Length > 0 ? $"{model.Title} ({model.Unit})" : model.Title, 10, "start", "#222222", Bold: true));
         if (points.Count == 0)
         {
@@ -146,7 +197,7 @@ internal static class ChartLayout
         }
 
         // The legend: as many entries per row as fit, below the axis.
-        var legend = LegendEntries(model, width, out var legendRows);
+        var legend = LegendEntries(drawn.Where(s => !s.Hidden).ToList(), width, out var legendRows);
         var plotBottom = height - AxisHeight - (legendRows * LegendRow) - 4;
         var values = points.SelectMany(p => new[] { p.Value, p.Low ?? p.Value, p.High ?? p.Value }).Where(double.IsFinite).ToList();
         if (values.Count == 0)
@@ -178,12 +229,13 @@ internal static class ChartLayout
             }
         }
 
-        var slots = Math.Max(1, model.Series.Count(x => x.Kind == SeriesKind.Band));
+        var slots = Math.Max(1, drawn.Count(x => x.Kind == SeriesKind.Band));
         var bandWidth = Math.Max(2.5, Math.Min(12, (width - Left - Right) / Math.Max(1, (t1 - t0) / points.Min(p => StepOf(p.Period))) * 0.8 / slots));
         // Band series side by side within a period, so that rounds and the consensus do not hide each other.
-        var bands = model.Series.Where(x => x.Kind == SeriesKind.Band).ToList();
-        foreach (var s in model.Series)
+        var bands = drawn.Where(x => x.Kind == SeriesKind.Band).ToList();
+        foreach (var s in drawn)
         {
+            void Add(Shape shape) => shapes.Add(s.Key is null ? shape : shape with { Series = s.Key, Hidden = s.Hidden });
             var ordered = s.Points.OrderBy(p => p.Period).ToList();
             if (s.Kind == SeriesKind.Band)
             {
@@ -192,9 +244,9 @@ internal static class ChartLayout
                 {
                     var x = X(TimeOf(p.Period)) + offset;
                     var top = Y(p.High!.Value);
-                    shapes.Add(new RectShape(x - (bandWidth / 2), top, bandWidth, Math.Max(0.8, Y(p.Low!.Value) - top), s.Colour, 0.35,
+                    Add(new RectShape(x - (bandWidth / 2), top, bandWidth, Math.Max(0.8, Y(p.Low!.Value) - top), s.Colour, 0.35,
                         $"{s.Label} {p.Period}: {Number(p.Low.Value, model.Decimals)} to {Number(p.High.Value, model.Decimals)}"));
-                    shapes.Add(new DotShape(x, Y(p.Value), 2.6, s.Colour, $"{s.Label} {p.Period}: {Number(p.Value, model.Decimals)}"));
+                    Add(new DotShape(x, Y(p.Value), 2.6, s.Colour, $"{s.Label} {p.Period}: {Number(p.Value, model.Decimals)}"));
                 }
                 continue;
             }
@@ -205,47 +257,49 @@ internal static class ChartLayout
                 var p = ordered[i];
                 if (i > 0 && TimeOf(p.Period) - TimeOf(ordered[i - 1].Period) > StepOf(p.Period) + 1e-9)
                 {
-                    Flush(shapes, run, s);
+                    Flush(run, s, Add);
                 }
                 run.Add((X(TimeOf(p.Period)), Y(p.Value)));
-                shapes.Add(new DotShape(X(TimeOf(p.Period)), Y(p.Value), 1.8, s.Colour, $"{s.Label} {p.Period}: {Number(p.Value, model.Decimals)}"));
+                Add(new DotShape(X(TimeOf(p.Period)), Y(p.Value), 1.8, s.Colour, $"{s.Label} {p.Period}: {Number(p.Value, model.Decimals)}"));
             }
-            Flush(shapes, run, s);
+            Flush(run, s, Add);
         }
 
         var ly = plotBottom + AxisHeight + 8;
         foreach (var (s, x, row) in legend)
         {
             var y = ly + (row * LegendRow);
+            // A legend entry goes with its series: a control that hides the series hides its entry too.
+            void Add(Shape shape) => shapes.Add(s.Key is null ? shape : shape with { Series = s.Key });
             if (s.Kind == SeriesKind.Band)
             {
-                shapes.Add(new RectShape(x, y - 8, 10, 10, s.Colour, 0.35));
-                shapes.Add(new DotShape(x + 5, y - 3, 2.2, s.Colour));
+                Add(new RectShape(x, y - 8, 10, 10, s.Colour, 0.35));
+                Add(new DotShape(x + 5, y - 3, 2.2, s.Colour));
             }
             else
             {
-                shapes.Add(new PolylineShape([(x, y - 3), (x + 16, y - 3)], s.Colour, 2, s.Dashed));
+                Add(new PolylineShape([(x, y - 3), (x + 16, y - 3)], s.Colour, 2, s.Dashed));
             }
-            shapes.Add(new TextShape(x + 20, y, s.Label, 8, "start", "#333333"));
+            Add(new TextShape(x + 20, y, s.Label, 8, "start", "#333333"));
         }
         return shapes;
     }
 
-    private static void Flush(List<Shape> shapes, List<(double X, double Y)> run, ChartSeries s)
+    private static void Flush(List<(double X, double Y)> run, ChartSeries s, Action<Shape> add)
     {
         if (run.Count > 1)
         {
-            shapes.Add(new PolylineShape(run.ToList(), s.Colour, 1.8, s.Dashed));
+            add(new PolylineShape(run.ToList(), s.Colour, 1.8, s.Dashed));
         }
         run.Clear();
     }
 
-    private static List<(ChartSeries Series, double X, int Row)> LegendEntries(ChartModel model, double width, out int rows)
+    private static List<(ChartSeries Series, double X, int Row)> LegendEntries(IReadOnlyList<ChartSeries> series, double width, out int rows)
     {
         var list = new List<(ChartSeries, double, int)>();
         double x = Left;
         var row = 0;
-        foreach (var s in model.Series)
+        foreach (var s in series)
         {
             // An estimate of the text width (DejaVu Sans at 8 pt averages about 4.6 pt a character).
             var w = 20 + (s.Label.Length * 4.6) + 14;
@@ -257,7 +311,7 @@ internal static class ChartLayout
             list.Add((s, x, row));
             x += w;
         }
-        rows = model.Series.Count == 0 ? 0 : row + 1;
+        rows = series.Count == 0 ? 0 : row + 1;
         return list;
     }
 
@@ -285,5 +339,5 @@ internal static class ChartLayout
         return (first * step, last * step, ticks);
     }
 
-    internal static string Number(double v, int decimals) => v.ToString("N" + decimals.ToString(CultureInfo.InvariantCulture), CultureInfo.InvariantCulture);
+    internal static string Number(double v, int decimals) => NumberText.Fixed(v, decimals);
 }

@@ -4,6 +4,7 @@ using PanelRound.Core.Domain;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
 using PanelRound.Web.Features.Results;
+using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Reports;
 
@@ -115,7 +116,7 @@ public static partial class PanelDossier
                 rows.Add(h is null
                     ? [p.Period, N(rr.Feedback.N), "withheld", "", "", "", "", "", "", ""]
                     : [p.Period, N(h.N), F(h.Median, q.Decimals), F(h.Q1, q.Decimals), F(h.Q3, q.Decimals), F(h.TrimmedMedian, q.Decimals),
-                        Pct(h.RelativeIqr), rr.Stability is { } s ? Pct(s.ShareMoved) : "–", rr.Stability?.Wilcoxon is { } w ? w.PValue.ToString("0.000", CultureInfo.InvariantCulture) : "–",
+                        Pct(h.RelativeIqr), rr.Stability is { } s ? Pct(s.ShareMoved) : "–", rr.Stability?.Wilcoxon is { } w ? NumberText.Format(w.PValue, "0.000") : "–",
                         N(h.Excluded)]);
             }
             if (rows.Count == 0)
@@ -197,7 +198,7 @@ public static partial class PanelDossier
         pdf.Table(["Setting", "Value"],
         [
             ["Outlier rule", Words.OutlierRule(s.OutlierRule)],
-            ["Trim fraction", s.TrimFraction.ToString("0.00", CultureInfo.InvariantCulture)],
+            ["Trim fraction", NumberText.Format(s.TrimFraction, "0.00")],
             ["Consensus threshold (relative IQR)", Pct(s.ConsensusThreshold)],
             ["Move threshold", Pct(s.StabilityThreshold)],
             ["Round cap", N(s.RoundCap)],
@@ -232,9 +233,9 @@ public static partial class PanelDossier
         }
     }
 
-    private static string F(double v, int decimals) => v.ToString("N" + decimals.ToString(CultureInfo.InvariantCulture), CultureInfo.InvariantCulture);
+    private static string F(double v, int decimals) => NumberText.Fixed(v, decimals);
 
     private static string N(int v) => v.ToString(CultureInfo.InvariantCulture);
 
-    private static string Pct(double? v) => v is { } x ? (x * 100).ToString("0.0", CultureInfo.InvariantCulture) + "%" : "–";
+    private static string Pct(double? v) => NumberText.Percent(v, 1);
 }

@@ -73,6 +73,17 @@ public static class ScorecardReport
             [2.4, 1.1, 1, 0.6, 1, 1, 1], new HashSet<int> { 3, 4, 5, 6 });
         var pooled = backtest.Pooled;
         pdf.Paragraph($"Pooled over {pooled.Panels} panel(s) with history, n = {pooled.N}: equal {F(pooled.EqualScaledMae)}, weighted {F(pooled.WeightedScaledMae)}, difference {F(pooled.Difference)}.", 9);
+        // The paragraph stays with its table.
+        pdf.EnsureSpace(120);
+        pdf.Paragraph("The equal-weight consensus of each past panel against the no-change forecast and the best statistical benchmark on the same question-periods "
+            + "(skill = 1 − scaled MAE of the consensus / of the other forecast; above 0 the panel was closer).", 9);
+        pdf.Table(["Panel", "No change (n)", "Skill vs no change", "Best benchmark", "Skill vs best"],
+            backtest.Panels.Select(p => (IReadOnlyList<string>)
+            [
+                p.Panel, $"{F(p.NaiveScaledMae, "0.000")} ({I(p.NNaive)})", F(p.SkillVsNaive),
+                p.Best is { } b ? $"{b["benchmark:".Length..]} ({F(p.BestScaledMae, "0.000")})" : "–", F(p.SkillVsBest),
+            ]).ToList(),
+            [2.4, 1.2, 1.1, 1.6, 1], new HashSet<int> { 1, 2, 4 });
         pdf.Paragraph(card.Caution, 9, bold: true);
         return pdf.ToBytes();
     }
@@ -93,7 +104,7 @@ public static class ScorecardReport
 
     private static string D(double? v) => v?.ToString("R", CultureInfo.InvariantCulture) ?? "";
 
-    private static string F(double? v, string format = "0.00") => v?.ToString(format, CultureInfo.InvariantCulture) ?? "–";
+    private static string F(double? v, string format = "0.00") => v is { } x && double.IsFinite(x) ? NumberText.Format(x, format) : NumberText.Missing;
 
-    private static string Pct(double? v) => v is { } x ? (x * 100).ToString("0.0", CultureInfo.InvariantCulture) + "%" : "–";
+    private static string Pct(double? v) => NumberText.Percent(v, 1);
 }

@@ -183,4 +183,42 @@ public class BacktestTests
         Assert.Equal(0, result.Pooled.N);
         Assert.Null(result.Pooled.Difference);
     }
+
+    [Fact]
+    public void Run_WithBenchmarks_EachRebuiltConsensusHasItsSkillAgainstNoChangeAndTheBestBenchmark()
+    {
+        // One panel, two question-periods, three experts, scale 10, no-change forecast 100 for both; by hand:
+        // equal consensus = median of {104, 106, 120} = 106 (2025) and of {108, 110, 111} = 110 (2026), no outlier by Tukey's fences.
+        ScoredItem[] items =
+        [
+            TestItems.Point(104, 110, 10, 100, expert: "A", period: "2025"), TestItems.Point(106, 110, 10, 100, expert: "B", period: "2025"),
+            TestItems.Point(120, 110, 10, 100, expert: "C", period: "2025"),
+            TestItems.Point(108, 112, 10, 100, expert: "A", period: "2026"), TestItems.Point(110, 112, 10, 100, expert: "B", period: "2026"),
+            TestItems.Point(111, 112, 10, 100, expert: "C", period: "2026"),
+        ];
+        // Benchmarks: drift 109 and 111 (errors 1 and 1), mean 100 and 100; another panel's item must not count.
+        ScoredItem[] benchmarks =
+        [
+            TestItems.Point(109, 110, 10, 100, expert: "benchmark:drift", period: "2025"), TestItems.Point(111, 112, 10, 100, expert: "benchmark:drift", period: "2026"),
+            TestItems.Point(100, 110, 10, 100, expert: "benchmark:mean", period: "2025"), TestItems.Point(100, 112, 10, 100, expert: "benchmark:mean", period: "2026"),
+            TestItems.Point(500, 110, 10, 100, expert: "benchmark:drift", panel: "other", period: "2025"),
+        ];
+        var panel = Assert.Single(Backtest.Run(BacktestPanel.FromItems(items), items, BacktestOptions.Default, benchmarks).Panels);
+        var skill = panel.EqualSkill!;
+
+        // Scaled MAE: consensus (|106 − 110| + |110 − 112|) / 10 / 2 = 0.3; no change (10 + 12) / 10 / 2 = 1.1; drift (1 + 1) / 10 / 2 = 0.1.
+        Assert.Equal(2, skill.Consensus.NScaledNaive);
+        Assert.Equal(1.1, skill.Consensus.ScaledNaiveMae!.Value, 12);
+        Assert.Equal(1 - (0.3 / 1.1), skill.SkillVsNaive!.Value, 12);
+        Assert.Equal("benchmark:drift", skill.Benchmarks.Best);
+        Assert.Equal(0.1, skill.Benchmarks.BestScaledMae!.Value, 12);
+        Assert.Equal(1 - (0.3 / 0.1), skill.SkillVsBest!.Value, 12);
+        // No history: the weights are equal, so the weighted consensus scores the same.
+        Assert.Equal(skill.SkillVsBest, panel.WeightedSkill!.SkillVsBest);
+
+        // Without benchmarks, the skill against no change stands and there is no best benchmark.
+        var plain = Assert.Single(Backtest.Run(BacktestPanel.FromItems(items), items, BacktestOptions.Default).Panels);
+        Assert.Equal(skill.SkillVsNaive, plain.EqualSkill!.SkillVsNaive);
+        Assert.Null(plain.EqualSkill.SkillVsBest);
+    }
 }

@@ -143,6 +143,59 @@ public abstract class BenchmarkTests(IDatabaseFixture fixture) : ProviderTests(f
     }
 
     [SkippableFact]
+    public async Task Backtest_PerPastPanel_SkillAgainstNoChangeAndTheBestBenchmark_EqualsARecomputation()
+    {
+        var app = await StartAsync();
+        var (staff, panelId, point, range) = await ConcludedAsync(app);
+
+        // Recomputation with plain arithmetic. The backtest's equal-weight consensus of the five final answers, by hand:
+        // the Point answers are 126 + i + 2(t − 2020) for i = 0..4, median 128 + 2(t − 2020), no outlier; the Range P50s
+        // are 127 + i in both years, whose average (trimmed or not: symmetric) is 129. The published consensus agrees.
+        var consensus = new Dictionary<(int, int), double> { [(point, 2020)] = 128, [(point, 2021)] = 130, [(range, 2020)] = 129, [(range, 2021)] = 129 };
+        foreach (var c in (await staff.GetOk($"/api/panels/{panelId}/consensus")).AsArray())
+        {
+            Assert.Equal(consensus[((int)c!["questionId"]!, int.Parse((string)c["period"]!, Inv))], (double)c["value"]!, 9);
+        }
+        // Scale: in-sample MAE of the one-step naive forecast on the reference series 2010-2019 (Hyndman & Koehler 2006,
+        // section 3.4); the no-change forecast is its last value, 2019; skill = 1 − scaled MAE / scaled MAE of the other
+        // forecast on the same question-periods (the form of the scorecard's skill against no change).
+        var y = Enumerable.Range(2010, 10).Select(t => Series[t]).ToArray();
+        var scale = y.Zip(y.Skip(1), (a, b) => Math.Abs(b - a)).Average();
+        double Mase(IEnumerable<(double Forecast, int Year)> forecasts) => forecasts.Average(f => Math.Abs(f.Forecast - Series[f.Year]) / scale);
+        var consensusMase = Mase(consensus.Select(kv => (kv.Value, kv.Key.Item2)));
+        var naiveMase = Mase(consensus.Keys.Select(k => (y[^1], k.Item2)));
+        // The benchmarks from their published paths (one path per question; both questions ask the same series).
+        var paths = (await staff.GetOk($"/api/panels/{panelId}/benchmarks"))["questions"]!.AsArray();
+        var mase = paths[0]!["benchmarks"]!.AsArray().Select(b => (string)b!["method"]!).ToDictionary(m => "benchmark:" + m, m => Mase(paths
+            .SelectMany(q => q!["benchmarks"]!.AsArray().Single(b => (string)b!["method"]! == m)!["path"]!.AsArray())
+            .Select(p => ((double)p!["value"]!, int.Parse((string)p["period"]!, Inv)))));
+        var best = mase.OrderBy(kv => kv.Value).ThenBy(kv => kv.Key, StringComparer.Ordinal).First();
+
+        var line = Assert.Single((await staff.GetOk("/api/scorecard/backtest"))["panels"]!.AsArray())!;
+        Assert.Equal(panelId, (int)line["panelId"]!);
+        Assert.Equal(4, (int)line["n"]!);
+        Assert.Equal(consensusMase, (double)line["equalScaledMae"]!, 9);
+        Assert.Equal(4, (int)line["nNaive"]!);
+        Assert.Equal(naiveMase, (double)line["naiveScaledMae"]!, 9);
+        Assert.Equal(1 - (consensusMase / naiveMase), (double)line["skillVsNaive"]!, 9);
+        Assert.Equal(best.Key, (string)line["best"]!);
+        Assert.Equal(best.Value, (double)line["bestScaledMae"]!, 9);
+        Assert.Equal(1 - (consensusMase / best.Value), (double)line["skillVsBest"]!, 9);
+        // Nobody had a record before this panel closed: no weighted consensus, so no weighted skill.
+        Assert.False((bool)line["hasHistory"]!);
+        Assert.Null(line["weightedSkillVsNaive"]);
+        Assert.Null(line["weightedSkillVsBest"]);
+
+        // The backtest page shows both skills per panel.
+        var pages = await StaffPages.SignedInClientAsync(app, "Reviewer");
+        var html = await pages.GetStringAsync("/staff/scorecard/backtest");
+        var row = System.Text.RegularExpressions.Regex.Match(html, "<tr[^>]*data-panel=\"" + panelId.ToString(Inv) + "\".*?</tr>", System.Text.RegularExpressions.RegexOptions.Singleline);
+        Assert.True(row.Success, "No backtest row for the panel.");
+        Assert.Contains((1 - (consensusMase / naiveMase)).ToString("N2", Inv), row.Value, StringComparison.Ordinal);
+        Assert.Contains((1 - (consensusMase / best.Value)).ToString("N2", Inv), row.Value, StringComparison.Ordinal);
+    }
+
+    [SkippableFact]
     public async Task Exports_WithInclude_AddBenchmarkRowsAndTheSourceColumnLast_WithoutItUnchanged_BadIncludeIs400()
     {
         var app = await StartAsync();

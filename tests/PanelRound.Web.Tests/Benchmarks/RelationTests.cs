@@ -1,6 +1,7 @@
 using System.Globalization;
 using System.Net;
 using System.Text.RegularExpressions;
+using Microsoft.EntityFrameworkCore;
 using PanelRound.Web.Tests.Defects;
 using PanelRound.Web.Tests.Infrastructure;
 
@@ -188,6 +189,63 @@ public abstract partial class RelationTests(IDatabaseFixture fixture) : Provider
         Assert.Equal("Implied yield", derived[3]);
         Assert.Equal("2026", derived[7]);
         Assert.Equal(impliedYield, double.Parse(derived[8], Inv), 9);
+    }
+
+    [SkippableFact]
+    public async Task PanelPage_DeclaresAndRemovesARelation_BadInputShownBesideItsField_AndChangesNothing()
+    {
+        var app = await StartAsync();
+        var s = await PanelAsync(app);
+        var pages = await StaffPages.SignedInClientAsync(app, "Facilitator");
+        var url = $"/Staff/Panels/Details/{s.PanelId}";
+        var html = await pages.GetStringAsync(url);
+        Assert.Contains("id=\"relation-form\"", html, StringComparison.Ordinal);
+        var token = StaffPages.TokenOf(html);
+
+        List<KeyValuePair<string, string>> Form(string shape = "Product", string resultFactor = "", int? first = null, string secondFactor = "0.01") =>
+        [
+            new("Relation.Shape", shape),
+            new("Relation.Result.QuestionId", s.Rent.ToString(Inv)), new("Relation.Result.Label", ""), new("Relation.Result.Unit", ""), new("Relation.Result.Factor", resultFactor),
+            new("Relation.First.QuestionId", (first ?? s.Value).ToString(Inv)), new("Relation.First.Label", ""), new("Relation.First.Unit", ""), new("Relation.First.Factor", ""),
+            new("Relation.Second.QuestionId", s.Yield.ToString(Inv)), new("Relation.Second.Label", ""), new("Relation.Second.Unit", ""), new("Relation.Second.Factor", secondFactor),
+        ];
+
+        // Bad input: the page again, the message beside the field it is about (the same rules as the API), nothing saved.
+        foreach (var (fields, field, words) in new (List<KeyValuePair<string, string>>, string, string)[]
+        {
+            (Form(resultFactor: "twelve"), "Relation.Result.Factor", "unit factor"),
+            (Form(resultFactor: "-1"), "Relation.Result.Factor", "positive number"),
+            (Form(secondFactor: "0,01"), "Relation.Second.Factor", "unit factor"),
+            (Form(first: s.Rent), "Relation.First.QuestionId", "one term"),
+            (Form(shape: "Times"), "Relation.Shape", "Product"),
+        })
+        {
+            var response = await pages.PostFormAsync(url + "?handler=DeclareRelation", token, fields);
+            Assert.Equal(HttpStatusCode.OK, response.StatusCode);
+            var page = await response.Content.ReadAsStringAsync();
+            var beside = Regex.Match(page, "data-error-for=\"" + Regex.Escape(field) + "\"[^>]*>([^<]*)<");
+            Assert.True(beside.Success, $"No message beside {field}.");
+            Assert.Contains(words, WebUtility.HtmlDecode(beside.Groups[1].Value), StringComparison.Ordinal);
+        }
+        Assert.Empty((await s.Staff.GetOk($"/api/panels/{s.PanelId}/relations")).AsArray());
+
+        // A good declaration is saved (the API lists it with the same formula) and shown with a removal that asks first.
+        var declared = await pages.PostFormAsync(url + "?handler=DeclareRelation", token, Form());
+        Assert.Equal(HttpStatusCode.Redirect, declared.StatusCode);
+        var relation = Assert.Single((await s.Staff.GetOk($"/api/panels/{s.PanelId}/relations")).AsArray())!;
+        Assert.Equal("Prime rent [EUR/m²/year] = Capital value [EUR/m²] × 0.01 × Prime yield [%]", (string)relation["formula"]!);
+        html = WebUtility.HtmlDecode(await pages.GetStringAsync(url));
+        Assert.Contains((string)relation["formula"]!, html, StringComparison.Ordinal);
+        var remove = Regex.Match(html, "<form[^>]*handler=RemoveRelation[^>]*>.*?</form>", RegexOptions.Singleline);
+        Assert.True(remove.Success, "No removal form.");
+        Assert.Contains($"name=\"relationId\" value=\"{(int)relation["id"]!}\"", remove.Value, StringComparison.Ordinal);
+        Assert.Contains("data-confirm=", remove.Value, StringComparison.Ordinal);
+
+        var removed = await pages.PostFormAsync(url + "?handler=RemoveRelation", token, [new("relationId", ((int)relation["id"]!).ToString(Inv))]);
+        Assert.Equal(HttpStatusCode.Redirect, removed.StatusCode);
+        Assert.Empty((await s.Staff.GetOk($"/api/panels/{s.PanelId}/relations")).AsArray());
+        var audit = await app.WithDbAsync(db => db.AuditEvents.Where(a => a.PanelId == s.PanelId && a.Action.StartsWith("Relation")).Select(a => a.Action).ToListAsync());
+        Assert.Equal(["RelationDeclared", "RelationRemoved"], audit.Order(StringComparer.Ordinal));
     }
 
     private static string? NoteOf(string html) => NoteRegex().Match(html) is { Success: true } m ? m.Groups[1].Value : null;

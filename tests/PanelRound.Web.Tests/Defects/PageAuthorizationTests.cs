@@ -105,6 +105,9 @@ public abstract partial class PageAuthorizationTests(IDatabaseFixture fixture) :
         ["POST /Staff/Panels/Details Conclude"] = Access.Facilitator,
         // PUT /api/panels/{id}/questions/{questionId}/true-value: Facilitator; GET .../calibration(/cross-validation): Staff.
         ["POST /Staff/Panels/Details TrueValue"] = Access.Facilitator,
+        // POST /api/panels/{id}/relations and DELETE .../relations/{relationId}: Facilitator.
+        ["POST /Staff/Panels/Details DeclareRelation"] = Access.Facilitator,
+        ["POST /Staff/Panels/Details RemoveRelation"] = Access.Facilitator,
         ["GET /Staff/Panels/Calibration"] = Access.Staff,
         ["GET /Staff/Panels/CrossValidation"] = Access.Staff,
 
@@ -140,7 +143,8 @@ public abstract partial class PageAuthorizationTests(IDatabaseFixture fixture) :
     }
 
     /// <summary>Entities the calls point at, so that a refused call would have written had it been allowed.</summary>
-    internal sealed record Seed(int IndicatorId, string IndicatorKey, int PanelId, int QuestionId, int NewExpertId, int MembershipId, int ApiKeyId);
+    internal sealed record Seed(int IndicatorId, string IndicatorKey, int PanelId, int QuestionId, int NewExpertId, int MembershipId, int ApiKeyId,
+        int SecondQuestionId = 0, int RelationId = 0);
 
     [SkippableFact]
     public async Task EveryPageHandler_EveryRole_AllowsExactlyTheExpectedPolicy()
@@ -321,6 +325,13 @@ public abstract partial class PageAuthorizationTests(IDatabaseFixture fixture) :
             ["KeyName"] = "matrix key",
             ["KeyRole"] = Roles.Reviewer,
             ["ClosesAt"] = DateTime.UtcNow.AddDays(10).ToString("yyyy-MM-ddTHH:mm", System.Globalization.CultureInfo.InvariantCulture),
+            // The panel page's relation form: the two seeded questions and a derived third term.
+            ["Relation.Shape"] = "Product",
+            ["Relation.Result.QuestionId"] = Invariant(seed.QuestionId),
+            ["Relation.First.QuestionId"] = Invariant(seed.SecondQuestionId),
+            ["Relation.Second.Label"] = "Matrix implied yield",
+            ["Relation.Second.Unit"] = "%",
+            ["Relation.Second.Factor"] = "0.01",
         };
         var arguments = HandlerArguments(seed);
         foreach (var p in h.Parameters.Where(p => arguments.ContainsKey(p.Name) && !h.Route.Contains('{' + p.Name, StringComparison.OrdinalIgnoreCase)))
@@ -339,6 +350,7 @@ public abstract partial class PageAuthorizationTests(IDatabaseFixture fixture) :
         ["trueValue"] = "100",
         ["id"] = Invariant(seed.ApiKeyId),
         ["action"] = "submit",
+        ["relationId"] = Invariant(seed.RelationId),
     };
 
     private static string Invariant(int v) => v.ToString(System.Globalization.CultureInfo.InvariantCulture);
@@ -389,11 +401,16 @@ public abstract partial class PageAuthorizationTests(IDatabaseFixture fixture) :
             settings = new { outlierRule = "TukeyFences", trimFraction = 0.1, minimumGroupSize = 3, outliersMustJustify = false },
         }))["id"]!;
         var question = (int)(await api.PostOk($"/api/panels/{panel}/questions", new { indicatorId = indicator, label = "Price per m²", format = "Point", hardMin = 500, hardMax = 20000 }))["id"]!;
+        var second = (int)(await api.PostOk($"/api/panels/{panel}/questions", new { indicatorId = indicator, label = "Price per m², upper floors", format = "Point", hardMin = 500, hardMax = 20000 }))["id"]!;
+        var relation = (int)(await api.PostOk($"/api/panels/{panel}/relations", new
+        {
+            shape = "Sum", result = new { questionId = second }, first = new { questionId = question }, second = new { label = "Floor premium", unit = "EUR/m²" },
+        }))["id"]!;
         var member = (int)(await api.PostOk("/api/experts", new { name = "Member Expert", email = "member@panel.example", affiliation = "Test" }))["id"]!;
         var newcomer = (int)(await api.PostOk("/api/experts", new { name = "Newcomer Expert", email = "newcomer@panel.example", affiliation = "Test" }))["id"]!;
         JsonNode link = await api.PostOk($"/api/panels/{panel}/members", new { expertId = member, sendInvitation = false });
         var apiKey = await app.WithDbAsync(db => db.ApiKeys.AsNoTracking().OrderBy(k => k.Id).Select(k => k.Id).FirstAsync());
-        return new Seed(indicator, key, panel, question, newcomer, (int)link["membershipId"]!, apiKey);
+        return new Seed(indicator, key, panel, question, newcomer, (int)link["membershipId"]!, apiKey, second, relation);
     }
 
     [GeneratedRegex(@"\{\*?([A-Za-z_][A-Za-z0-9_]*)[^}]*\}")]

@@ -35,12 +35,14 @@ public class DemoScenarioTests
         Assert.Equal("2027,2028,2029,2030,2031", current.TargetPeriods);
         Assert.True(current.Rounds.Single(r => r.Number == 1).Closed);
         Assert.False(current.Rounds.Single(r => r.Number == 2).Closed);
-        // Six annual series asked about by every panel, and ten quarterly figures behind the running panel's calibration questions.
+        // Six annual series asked about by every panel, a seventh (the capital value tied to rent and yield) by the running
+        // panel, and ten quarterly figures behind the running panel's calibration questions.
         var calibration = current.Questions.Where(q => q.CalibrationPeriod is not null).ToList();
         Assert.Equal(10, calibration.Count);
         Assert.All(calibration, q => Assert.Equal("Range", q.Format));
         Assert.All(calibration, q => Assert.NotNull(q.TrueValue));
-        Assert.Equal(16, s.Indicators.Count);
+        Assert.Equal(17, s.Indicators.Count);
+        Assert.Equal("office-value-prime", Assert.Single(current.Relations!).First.Indicator);
         foreach (var i in s.Indicators.Where(i => calibration.All(q => q.Indicator != i.Key)))
         {
             var before = s.Observations.Count(o => o.Indicator == i.Key && Period.Parse(o.Period).Year < current.StartsOn.Year);

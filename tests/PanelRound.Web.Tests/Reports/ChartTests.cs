@@ -1,4 +1,5 @@
 using PanelRound.Core.Domain;
+using PanelRound.Web.Features.Benchmarks;
 using PanelRound.Web.Reports;
 
 namespace PanelRound.Web.Tests.Reports;
@@ -50,5 +51,43 @@ public class ChartTests
         var ticks = shapes.OfType<TextShape>().Count(t => t.Anchor == "end");
         Assert.InRange(ticks, 2, 12);
         Assert.All(shapes.OfType<DotShape>(), d => Assert.True(double.IsFinite(d.Y)));
+    }
+
+    private static BenchmarkDto Benchmark(string method, string name, double rmse, double value) =>
+        new(method, name, true, null, new Dictionary<string, double>(), 9, rmse, rmse, rmse,
+            [new BenchmarkPointDto("2027", 1, value, value - 5, value + 5), new BenchmarkPointDto("2028", 2, value + 1, value - 6, value + 8)]);
+
+    [Fact]
+    public void ResultsChart_DrawsNoChangeAndTheBestFittingBenchmark_KeepsTheOthersToToggle_AndTheLegendShort()
+    {
+        var question = new QuestionBenchmarksDto(1, "Rent", "rent", "EUR", 1, "Point", 10, "2017", "2026", false,
+        [
+            Benchmark("naive", "No change (naive)", 5, 100), Benchmark("drift", "Random walk with drift", 3, 103),
+            Benchmark("mean", "Mean of the last 3 observations", 7, 98), Benchmark("ses", "Simple exponential smoothing", 4.5, 100.5),
+            Benchmark("holt", "Holt's linear trend", 2.5, 104), Benchmark("damped", "Damped trend", 2.9, 103.5),
+        ]);
+        var chart = new ChartModel("Rent", "EUR", 1,
+        [
+            new ChartSeries("Observed history", SeriesKind.Line, "#555555", [P(2025, 95), P(2026, 99)]),
+            new ChartSeries("Round 1: median and Q1-Q3", SeriesKind.Band, "#9ecae1", [P(2027, 101, 99, 103), P(2028, 102, 100, 104)]),
+            new ChartSeries("Round 2: median and Q1-Q3", SeriesKind.Band, "#3182bd", [P(2027, 101, 100, 102), P(2028, 102, 101, 103)]),
+            new ChartSeries("Consensus and Q1-Q3 band", SeriesKind.Band, "#d95f02", [P(2027, 101, 100, 102), P(2028, 102, 101, 103)]),
+            .. BenchmarkReport.ChartLayer(question),
+        ]);
+
+        // Drawn and in the legend: no change and the benchmark with the lowest in-sample one-step RMSE (Holt here).
+        var legend = chart.Layout(640, 260).OfType<TextShape>().Select(t => t.Text).Where(t => t.StartsWith("Benchmark", StringComparison.Ordinal)).ToList();
+        Assert.Equal(2, legend.Count);
+        Assert.Contains(legend, t => t.Contains("No change", StringComparison.Ordinal));
+        Assert.Contains(legend, t => t.Contains("Holt", StringComparison.Ordinal));
+        // Every benchmark is in the page's drawing, the four others hidden until the reader shows them.
+        var svg = chart.ToSvg();
+        foreach (var method in new[] { "naive", "drift", "mean", "ses", "holt", "damped" })
+        {
+            Assert.Contains($"data-series=\"benchmark:{method}\"", svg, StringComparison.Ordinal);
+        }
+        Assert.Equal(4, System.Text.RegularExpressions.Regex.Count(svg, "visibility=\"hidden\""));
+        // The PDF drawing has only what is shown.
+        Assert.DoesNotContain(chart.Layout(640, 260).OfType<PolylineShape>(), l => l.Colour == BenchmarkReport.ColourOf("drift"));
     }
 }

@@ -227,8 +227,7 @@ public abstract partial class AuthorizationMatrixTests(IDatabaseFixture fixture)
             "membershipId" => membership.Invariant(),
             "questionId" => seed.QuestionId.Invariant(),
             "number" => "1",
-            // No relation is seeded: the route's authorisation answers before the id is looked up.
-            "relationId" => "1",
+            "relationId" => seed.RelationId.Invariant(),
             "documentName" => "v1",
             var other => throw new InvalidOperationException($"{e.Key}: no test value for {other}."),
         });

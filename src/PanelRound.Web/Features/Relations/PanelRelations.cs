@@ -1,4 +1,3 @@
-using System.Globalization;
 using Microsoft.EntityFrameworkCore;
 using PanelRound.Core.Domain;
 using PanelRound.Core.Relations;
@@ -299,5 +298,5 @@ public sealed class PanelRelations(PanelRoundDbContext db, TimeProvider clock)
         return result;
     }
 
-    private static string Num(double? v, int decimals) => v is { } x ? x.ToString("N" + Math.Clamp(decimals, 0, 6).ToString(CultureInfo.InvariantCulture), CultureInfo.InvariantCulture) : "–";
+    private static string Num(double? v, int decimals) => NumberText.Fixed(v, Math.Clamp(decimals, 0, 6));
 }

@@ -51,8 +51,16 @@ public static class ScorecardApi
     }
 
     /// <summary>One panel's backtest: <c>hasHistory</c> false means nobody had a record before it closed, so there is no weighted result (null).</summary>
+    /// <remarks>
+    /// Skill of the equal-weight consensus: <c>skillVsNaive</c> = 1 − its scaled MAE / the no-change forecast's (<c>naiveScaledMae</c>)
+    /// on the <c>nNaive</c> question-periods with a scale and a no-change forecast; <c>skillVsBest</c> = 1 − its scaled MAE /
+    /// the scaled MAE of the best benchmark (<c>best</c>, <c>bestScaledMae</c>) on the <c>n</c> scored question-periods.
+    /// <c>weightedSkillVsNaive</c> and <c>weightedSkillVsBest</c>: the same for the track-record consensus (null without history).
+    /// </remarks>
     public sealed record BacktestPanelDto(
-        int PanelId, string Panel, DateOnly ClosedOn, int HistoryItems, bool HasHistory, int N, double? EqualScaledMae, double? WeightedScaledMae, double? Difference);
+        int PanelId, string Panel, DateOnly ClosedOn, int HistoryItems, bool HasHistory, int N, double? EqualScaledMae, double? WeightedScaledMae, double? Difference,
+        int NNaive = 0, double? NaiveScaledMae = null, double? SkillVsNaive = null, string? Best = null, double? BestScaledMae = null, double? SkillVsBest = null,
+        double? WeightedSkillVsNaive = null, double? WeightedSkillVsBest = null);
 
     /// <summary>Equal against weighted over the panels with history; n = question-periods scored.</summary>
     public sealed record BacktestPooledDto(int N, int Panels, double? EqualScaledMae, double? WeightedScaledMae, double? Difference);
@@ -65,7 +73,7 @@ public static class ScorecardApi
         group.MapGet("/", GetScorecard).WithName("GetScorecard")
             .WithSummary("Per expert (by external key) and for the consensus and the no-change forecast: n, MAE, mean error, RMSE, scaled MAE, coverage and interval score; optional filters indicator and period.");
         group.MapGet("/backtest", GetBacktest).WithName("GetBacktest")
-            .WithSummary("Per past panel and pooled: scaled MAE of the equal-weight and the track-record consensus, weights known before each panel closed.");
+            .WithSummary("Per past panel and pooled: scaled MAE of the equal-weight and the track-record consensus, weights known before each panel closed; per panel, the consensus's skill against no change and against the best benchmark.");
         app.MapGet("/api/panels/{id:int}/consensus/compare", CompareConsensus).WithTags("Panels").RequireAuthorization(AuthSetup.StaffPolicy)
             .WithName("CompareConsensus")
             .WithSummary("Equal-weight and track-record consensus of the last closed round side by side, with the members' weights by panel code.");
@@ -96,8 +104,12 @@ public static class ScorecardApi
         var panels = view.Panels.Select(l =>
         {
             var c = l.Result.Comparison;
+            var equal = l.Result.EqualSkill;
+            var weighted = l.HasHistory ? l.Result.WeightedSkill : null;
             return new BacktestPanelDto(l.Panel.Id, l.Panel.DisplayKey, l.Result.ClosedOn, l.Result.HistoryItems, l.HasHistory, c.N,
-                F(c.EqualScaledMae), l.HasHistory ? F(c.WeightedScaledMae) : null, l.HasHistory ? F(c.Difference) : null);
+                F(c.EqualScaledMae), l.HasHistory ? F(c.WeightedScaledMae) : null, l.HasHistory ? F(c.Difference) : null,
+                equal?.Consensus.NScaledNaive ?? 0, F(equal?.Consensus.ScaledNaiveMae), F(equal?.SkillVsNaive), equal?.Benchmarks.Best,
+                F(equal?.Benchmarks.BestScaledMae), F(equal?.SkillVsBest), F(weighted?.SkillVsNaive), F(weighted?.SkillVsBest));
         }).ToList();
         var p = view.Pooled;
         return TypedResults.Ok(new BacktestDto(

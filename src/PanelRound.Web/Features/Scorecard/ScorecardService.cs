@@ -184,13 +184,15 @@ public sealed class ScorecardService(
 
     /// <summary>
     /// The backtest over the database's panels: each panel's consensus rebuilt with the weights
-    /// known before it closed, with the panel's own consensus settings, against equal weights.
+    /// known before it closed, with the panel's own consensus settings, against equal weights,
+    /// and each against the no-change forecast and the panel's benchmarks.
     /// The pooled comparison takes only the panels whose weights rested on a record: without
     /// one, the weights are equal and the difference is 0 by construction, not evidence.
     /// </summary>
     public async Task<BacktestView> BacktestAsync(ScoringData? data = null)
     {
         data ??= await scoring.LoadAsync();
+        var benchmarks = await benchmarkScoring.ItemsAsync(data);
         var lines = new List<BacktestLine>();
         int n = 0;
         double sumEqual = 0, sumWeighted = 0;
@@ -201,7 +203,7 @@ public sealed class ScorecardService(
             {
                 Settings = FeedbackCalculator.SettingsOf(scored.Settings),
                 PseudoForecasts = K,
-            });
+            }, [.. benchmarks.Where(i => i.PanelKey == panel.PanelKey)]);
             var result = run.Panels[0];
             var hasHistory = result.HistoryItems > 0
                 && (result.PointWeights?.PoolMeanError is not null || result.RangeWeights?.PoolMeanError is not null);

@@ -32,3 +32,14 @@ document.querySelectorAll('input[data-select-on-focus]').forEach(function (el) {
   el.addEventListener('focus', function () { el.select(); });
   el.addEventListener('click', function () { el.select(); });
 });
+// Shows or hides a chart's series: <input type="checkbox" data-chart="chart id" data-chart-series="series key">.
+document.querySelectorAll('input[data-chart-series]').forEach(function (box) {
+  box.addEventListener('change', function () {
+    var chart = document.getElementById(box.dataset.chart);
+    if (!chart) return;
+    chart.querySelectorAll('g[data-series]').forEach(function (g) {
+      if (g.getAttribute('data-series') !== box.dataset.chartSeries) return;
+      if (box.checked) g.removeAttribute('visibility'); else g.setAttribute('visibility', 'hidden');
+    });
+  });
+});

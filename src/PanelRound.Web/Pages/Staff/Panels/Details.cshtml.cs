@@ -7,6 +7,7 @@ using PanelRound.Data.Entities;
 using PanelRound.Core.Domain;
 using PanelRound.Web.Features.Calibration;
 using PanelRound.Web.Features.Panels;
+using PanelRound.Web.Features.Relations;
 using PanelRound.Web.Features.Results;
 using PanelRound.Web.Features.Roster;
 using PanelRound.Web.Features.Rounds;
@@ -14,12 +15,43 @@ using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Pages.Staff.Panels;
 
-/// <summary>The facilitator's panel page: questions, roster and links, rounds with the response tracker, conclusion.</summary>
+/// <summary>The facilitator's panel page: questions and their relations, roster and links, rounds with the response tracker, conclusion.</summary>
 [Authorize(Policy = AuthSetup.FacilitatorPolicy)]
 [WritePolicy(AuthSetup.FacilitatorPolicy)]
 public class DetailsModel(
-    PanelRoundDbContext db, PanelSetup setup, Memberships memberships, RoundLifecycle rounds, PanelConclusion conclusion, CalibrationTruths truths) : PageModel
+    PanelRoundDbContext db, PanelSetup setup, Memberships memberships, RoundLifecycle rounds, PanelConclusion conclusion, CalibrationTruths truths,
+    PanelRelations relations) : PageModel
 {
+    /// <summary>One term of the relation form as typed; the unit factor is read by <see cref="Numbers.TryParseEntry"/> with a decimal point.</summary>
+    public sealed class RelationTermForm
+    {
+        public int? QuestionId { get; set; }
+
+        public string? Label { get; set; }
+
+        public string? Unit { get; set; }
+
+        public string? Factor { get; set; }
+    }
+
+    /// <summary>The relation form: the identity's shape and its three terms (names as in the API's <see cref="RelationInput"/>).</summary>
+    public sealed class RelationForm
+    {
+        public string? Shape { get; set; }
+
+        public RelationTermForm Result { get; set; } = new();
+
+        public RelationTermForm First { get; set; } = new();
+
+        public RelationTermForm Second { get; set; } = new();
+    }
+
+    [BindProperty]
+    public RelationForm Relation { get; set; } = new();
+
+    /// <summary>The panel's declared relations.</summary>
+    public IReadOnlyList<QuestionRelation> Relations { get; private set; } = [];
+
     [BindProperty(SupportsGet = true)]
     public int Id { get; set; }
 
@@ -54,6 +86,7 @@ public class DetailsModel(
             return NotFound();
         }
         Panel = panel;
+        Relations = await relations.ListAsync(panel.Id) ?? [];
         BriefHtml = Markdown.ToSafeHtml(panel.Brief);
         var members = panel.Memberships.Select(m => m.ExpertId).ToHashSet();
         Roster = await db.Experts.AsNoTracking().Where(e => !members.Contains(e.Id)).OrderBy(e => e.Name).ToListAsync();
@@ -109,6 +142,51 @@ public class DetailsModel(
         }
         return await Done(await truths.RecordAsync(Id, questionId, value, Audit.ActorOf(User)), value is null ? "True value cleared." : "True value recorded.");
     }
+
+    /// <summary>
+    /// Declares a relation through the same use case as <c>POST /api/panels/{id}/relations</c> (its rules, its
+    /// audit event); the page only reads the typed unit factors. Errors stand beside their fields.
+    /// </summary>
+    public async Task<IActionResult> OnPostDeclareRelationAsync()
+    {
+        RelationTermInput Term(string field, RelationTermForm t)
+        {
+            double? factor = null;
+            if (!string.IsNullOrWhiteSpace(t.Factor))
+            {
+                var reading = Numbers.TryParseEntry(t.Factor, DecimalSeparator.Point);
+                if (reading.IsValid)
+                {
+                    factor = reading.Value;
+                }
+                else
+                {
+                    ModelState.AddModelError($"Relation.{field}.Factor", "The unit factor " + reading.Error);
+                }
+            }
+            return new RelationTermInput(t.QuestionId, t.Label, t.Unit, factor);
+        }
+        var input = new RelationInput(Relation.Shape, Term("Result", Relation.Result), Term("First", Relation.First), Term("Second", Relation.Second));
+        if (ModelState.ErrorCount > 0)
+        {
+            return await OnGetAsync();
+        }
+        var result = await relations.AddAsync(Id, input, Audit.ActorOf(User));
+        if (result.IsOk)
+        {
+            Notice = "Relation declared: " + RelationDto.FormulaOf(result.Value!);
+            return RedirectToPage(new { id = Id });
+        }
+        ModelState.AddResult(result, "Relation");
+        return await OnGetAsync();
+    }
+
+    public async Task<IActionResult> OnPostRemoveRelationAsync(int relationId) =>
+        await Done(await relations.RemoveAsync(Id, relationId, Audit.ActorOf(User)), "Relation removed.");
+
+    /// <summary>The errors beside a field of the page's forms (<c>Relation.Result.Factor</c>; keys ignore case), or null.</summary>
+    public string? ErrorFor(string key) =>
+        ModelState.TryGetValue(key, out var entry) && entry.Errors.Count > 0 ? string.Join(" ", entry.Errors.Select(e => e.ErrorMessage)) : null;
 
     public async Task<IActionResult> OnPostConcludeAsync() =>
         await Done(await conclusion.ConcludeAsync(Id, Audit.ActorOf(User)), "Panel concluded; the consensus is published.");

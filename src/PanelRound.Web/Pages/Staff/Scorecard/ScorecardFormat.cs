@@ -5,22 +5,20 @@ using Microsoft.AspNetCore.Html;
 using PanelRound.Core.Domain;
 using PanelRound.Core.Scoring;
 using PanelRound.Web.Features.Scorecard;
+using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Pages.Staff.Scorecard;
 
 /// <summary>How the scorecard pages write numbers, bias directions and the forecast chart.</summary>
 public static class ScorecardFormat
 {
-    public const string Dash = "–";
+    public const string Dash = NumberText.Missing;
 
-    public static string Number(double? value, int decimals = 2) =>
-        value is { } v && double.IsFinite(v) ? v.ToString("N" + decimals.ToString(CultureInfo.InvariantCulture), CultureInfo.InvariantCulture) : Dash;
+    public static string Number(double? value, int decimals = 2) => NumberText.Fixed(value, decimals);
 
-    public static string Signed(double? value, int decimals = 2) =>
-        value is { } v && double.IsFinite(v) ? (v > 0 ? "+" : "") + v.ToString("N" + decimals.ToString(CultureInfo.InvariantCulture), CultureInfo.InvariantCulture) : Dash;
+    public static string Signed(double? value, int decimals = 2) => NumberText.Signed(value, decimals);
 
-    public static string Percent(double? share) =>
-        share is { } s && double.IsFinite(s) ? (100 * s).ToString("N0", CultureInfo.InvariantCulture) + "%" : Dash;
+    public static string Percent(double? share) => NumberText.Percent(share, 0);
 
     /// <summary>The bias direction in words.</summary>
     public static string Bias(BiasDirection? bias) => bias switch
@@ -31,14 +29,12 @@ public static class ScorecardFormat
         _ => Dash,
     };
 
-    /// <summary>Round 1 to final: negative scaled change means the rounds improved the forecasts.</summary>
-    public static string Change(double? change) => change switch
+    /// <summary>Round 1 to final: negative scaled change means the rounds improved the forecasts; one that rounds to zero is neither.</summary>
+    public static string Change(double? change)
     {
-        null => Dash,
-        < 0 => Signed(change) + " (better)",
-        > 0 => Signed(change) + " (worse)",
-        _ => "0.00",
-    };
+        var text = Signed(change);
+        return text.StartsWith('-') ? text + " (better)" : text.StartsWith('+') ? text + " (worse)" : text;
+    }
 
     /// <summary>
     /// A server-rendered SVG of an expert's final-round forecasts of one indicator (dots, with the
