@@ -19,6 +19,10 @@ public static class ScorecardFormat
     public static string Signed(double? value, int decimals = 2) =>
         value is { } v && double.IsFinite(v) ? (v > 0 ? "+" : "") + v.ToString("N" + decimals.ToString(CultureInfo.InvariantCulture), CultureInfo.InvariantCulture) : Dash;
 
+    /// <summary>A calibration score, information or weight: three decimals, or scientific notation below 0.001.</summary>
+    public static string Score(double value) =>
+        double.IsFinite(value) ? value.ToString(value != 0 && Math.Abs(value) < 0.001 ? "0.00E+0" : "0.000", CultureInfo.InvariantCulture) : Dash;
+
     public static string Percent(double? share) =>
         share is { } s && double.IsFinite(s) ? (100 * s).ToString("N0", CultureInfo.InvariantCulture) + "%" : Dash;
 
