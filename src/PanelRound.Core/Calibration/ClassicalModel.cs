@@ -31,6 +31,12 @@ namespace PanelRound.Core.Calibration;
 /// combination with the highest combined score (calibration × information, scored as a virtual
 /// expert); ties keep the smaller α, and α = 0 is always a candidate, so the optimised
 /// combination never scores below the one with α = 0.</para>
+/// <para>Implementation note: the result does not depend on the order of the items or the
+/// assessments. Floating-point sums depend on their order in the last bits, and those bits
+/// matter: the weights feed the pooled quantiles, and a truth that equals a quantile (common
+/// with rounded figures) falls in one bin or the next by one ulp. So an expert's information is
+/// summed in ascending order, and <see cref="LinearPool"/> sums over the answers in a canonical
+/// order and returns a quantile that lies on an answer's knot as that answer's own value.</para>
 /// </remarks>
 public static class ClassicalModel
 {
@@ -151,11 +157,21 @@ public static class ClassicalModel
         ArgumentNullException.ThrowIfNull(answers);
         Preconditions.CheckNotEmpty(answers);
         var hits = new int[4];
-        var information = 0.0;
-        foreach (var (answer, truth, range) in answers)
+        var terms = new double[answers.Count];
+        for (var i = 0; i < answers.Count; i++)
         {
+            var (answer, truth, range) = answers[i];
             hits[BinOf(truth, answer)]++;
-            information += InformationOf(answer, range);
+            terms[i] = InformationOf(answer, range);
+        }
+
+        // Implementation note: summed in ascending order, so the mean does not depend on the order of the questions
+        // (it feeds the weights, and the weights the pooled quantiles a truth is compared with).
+        Array.Sort(terms);
+        var information = 0.0;
+        foreach (var term in terms)
+        {
+            information += term;
         }
 
         var (statistic, calibration) = CalibrationOf(hits);

@@ -56,7 +56,9 @@ public static class ConsensusExtras
         var published = rows.Count > 0 ? rows[0].PublishedAt : panel.ConcludedAt ?? DateTime.UtcNow;
         if (benchmarks && await new PanelBenchmarks(db).BuildAsync(panel.Id) is { } b)
         {
-            foreach (var q in b.Questions)
+            // Calibration questions take no part in the exports: their benchmarks stay out as well.
+            var calibration = panel.Questions.Where(q => q.IsCalibration).Select(q => q.Id).ToHashSet();
+            foreach (var q in b.Questions.Where(q => !calibration.Contains(q.QuestionId)))
             {
                 foreach (var m in q.Benchmarks.Where(m => m.Available))
                 {

@@ -3,6 +3,7 @@ using Microsoft.EntityFrameworkCore;
 using PanelRound.Core.Domain;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
+using PanelRound.Web.Features.Calibration;
 using PanelRound.Web.Features.Results;
 using PanelRound.Web.Infrastructure;
 
@@ -14,6 +15,9 @@ namespace PanelRound.Web.Reports;
 /// the consensus, a table per round, the stop suggestion, excluded answers counted and a
 /// selection of unattributed rationales; a method appendix with each statistic's published
 /// source and the panel's settings; the audit trail; declared interests without names.
+/// Calibration questions are left out of the question and consensus sections (they take no part
+/// in the consensus) and have a short section of their own: the questions, their true values once
+/// recorded, each panel code's scores and weight, and whether the consensus used those weights.
 /// Panel codes only, never an expert's name.
 /// </summary>
 public static partial class PanelDossier
@@ -34,7 +38,8 @@ public static partial class PanelDossier
         {
             return null;
         }
-        var panel = await db.Panels.AsNoTracking().Include(p => p.Rounds).SingleAsync(p => p.Id == panelId);
+        var panel = await db.Panels.AsNoTracking().Include(p => p.Rounds).Include(p => p.Questions).ThenInclude(q => q.Indicator)
+            .AsSplitQuery().SingleAsync(p => p.Id == panelId);
         var rounds = panel.Rounds.OrderBy(r => r.Number).ToList();
         var roundIds = rounds.Select(r => r.Id).ToList();
         var responders = await db.Estimates.AsNoTracking().Where(e => roundIds.Contains(e.RoundId) && !e.IsDraft)
@@ -43,24 +48,38 @@ public static partial class PanelDossier
         var audit = await db.AuditEvents.AsNoTracking().Where(a => a.PanelId == panelId).OrderBy(a => a.Id).ToListAsync();
         var benchmarks = await new Features.Benchmarks.PanelBenchmarks(db).BuildAsync(panelId);
         var relations = Features.Relations.PanelRelations.OnConsensus(await db.Relations.AsNoTracking().Where(r => r.PanelId == panelId).OrderBy(r => r.Id).ToListAsync(), view);
+        var calibration = panel.Questions.Any(q => q.IsCalibration)
+            ? CalibrationResults.ViewOf(await CalibrationScoring.LoadAsync(db, panel))
+            : null;
         return Render(new DossierData(panel, view, rounds, members.Count,
             responders.GroupBy(r => r.RoundId).ToDictionary(g => g.Key, g => g.Count()), audit,
-            members.Select(m => m.Expert?.DeclaredInterests).ToList(), now, benchmarks, relations));
+            members.Select(m => m.Expert?.DeclaredInterests).ToList(), now, benchmarks, relations, calibration));
     }
 
     /// <summary>Everything a dossier shows, loaded; <see cref="Render"/> does no I/O.</summary>
     public sealed record DossierData(
         Panel Panel, PanelResultsView View, IReadOnlyList<Round> Rounds, int Members, IReadOnlyDictionary<int, int> RespondedByRoundId,
         IReadOnlyList<AuditEvent> Audit, IReadOnlyList<string?> DeclaredInterests, DateTime Now,
-        Features.Benchmarks.PanelBenchmarksDto? Benchmarks = null, IReadOnlyList<Features.Relations.RelationConsensusCheck>? Relations = null);
+        Features.Benchmarks.PanelBenchmarksDto? Benchmarks = null, IReadOnlyList<Features.Relations.RelationConsensusCheck>? Relations = null,
+        PanelCalibrationView? Calibration = null)
+    {
+        /// <summary>The questions of the consensus: every question but the calibration questions.</summary>
+        public IReadOnlyList<QuestionResult> ConsensusQuestions =>
+            Calibration is null ? View.Questions : [.. View.Questions.Where(q => !Calibration.Questions.Any(c => c.QuestionId == q.QuestionId))];
+    }
 
     public static byte[] Render(DossierData d)
     {
         using var pdf = new PdfReport($"Dossier: {d.Panel.Title}", $"PanelRound dossier · {d.Panel.Title}", "A forecast, not a valuation or investment advice.");
-        Cover(pdf, d.Panel, d.View, d.Rounds, d.Members, d.RespondedByRoundId, d.Now);
-        foreach (var q in d.View.Questions)
+        var questions = d.ConsensusQuestions;
+        Cover(pdf, d.Panel, questions.Count, d.Calibration?.Questions.Count ?? 0, d.Rounds, d.Members, d.RespondedByRoundId, d.Now);
+        foreach (var q in questions)
         {
             Question(pdf, q, d.Rounds, d.Benchmarks?.Questions.FirstOrDefault(b => b.QuestionId == q.QuestionId));
+        }
+        if (d.Calibration is { } calibration)
+        {
+            CalibrationSection(pdf, d.Panel, calibration, questions, d.Now);
         }
         BenchmarkReport.Relations(pdf, d.Relations);
         Appendix(pdf, d.Panel);
@@ -69,7 +88,7 @@ public static partial class PanelDossier
         return pdf.ToBytes();
     }
 
-    private static void Cover(PdfReport pdf, Panel panel, PanelResultsView view, IReadOnlyList<Round> rounds, int members, IReadOnlyDictionary<int, int> responded, DateTime now)
+    private static void Cover(PdfReport pdf, Panel panel, int questions, int calibrationQuestions, IReadOnlyList<Round> rounds, int members, IReadOnlyDictionary<int, int> responded, DateTime now)
     {
         pdf.Space(40);
         pdf.Paragraph("Expert panel dossier", 11, colour: "#555555");
@@ -89,7 +108,9 @@ public static partial class PanelDossier
                 r.ClosedAt is { } closed ? $"{closed:yyyy-MM-dd HH:mm} UTC" : "open", responded.GetValueOrDefault(r.Id).ToString(CultureInfo.InvariantCulture),
                 members.ToString(CultureInfo.InvariantCulture)]).ToList(),
             [1, 2, 2.5, 2, 1.5], new HashSet<int> { 3, 4 });
-        pdf.Paragraph($"{view.Questions.Count} question(s). Experts are identified by panel codes only.", 9);
+        pdf.Paragraph($"{questions} question(s)"
+            + (calibrationQuestions > 0 ? $", and {calibrationQuestions} calibration question(s) that score the experts and take no part in the consensus (see \"Calibration questions\")" : "")
+            + ". Experts are identified by panel codes only.", 9);
         pdf.Heading("Caution", 2);
         pdf.Paragraph(ConsensusExport.Caution, 9.5, bold: true);
     }
@@ -179,6 +200,61 @@ public static partial class PanelDossier
         return new ChartModel(q.Label, q.Unit, q.Decimals, series);
     }
 
+    /// <summary>
+    /// The calibration questions: what they are for, whether the consensus used their weights, the questions with their
+    /// true values once recorded, and each panel code's hits, scores and weight as of the dossier's date.
+    /// </summary>
+    private static void CalibrationSection(PdfReport pdf, Panel panel, PanelCalibrationView v, IReadOnlyList<QuestionResult> consensusQuestions, DateTime now)
+    {
+        pdf.NewPage();
+        pdf.Heading("Calibration questions", 2);
+        pdf.Paragraph("These questions ask about figures whose true value the facilitator knew, or learnt soon after the round closed. "
+            + "They score each expert early, for statistical accuracy (calibration: do the true values fall in the expert's P10-P50-P90 bins "
+            + "as often as claimed?) and informativeness (information: how narrow are the bands?), on the classical model of structured "
+            + "expert judgment (R. M. Cooke, Experts in Uncertainty, Oxford University Press, 1991, chapter 12). They take no part in the "
+            + "consensus, the exports or the long-horizon scorecard, and the experts were not told which questions they are.", 9);
+        var methods = consensusQuestions.SelectMany(q => q.Periods).Select(p => p.Consensus?.Method).OfType<string>().ToList();
+        var applied = methods.Any(m => m.StartsWith("Calibration", StringComparison.Ordinal));
+        var weighting = applied
+            ? "Weighting applied: the published consensus uses the calibration-question weights below (the weighted linear pool of the experts' "
+                + "distributions for Range questions, the weighted median for Point questions)."
+            : panel.Settings.Weighting == ConsensusWeighting.Calibration
+                ? (methods.Count > 0
+                    ? "Weighting not applied: the panel asks for calibration-question weights, but no expert had a positive weight when the consensus was published, so it uses equal weights."
+                    : "The panel asks for calibration-question weights; no consensus is published yet.")
+                : $"Weighting not applied: the consensus uses {Words.Weighting(panel.Settings.Weighting)}; the weights below are shown for information.";
+        pdf.Paragraph(weighting, 9.5, bold: true);
+
+        pdf.Table(["Question", "Period", "Unit", "True value", "Recorded (UTC)", "Answers"],
+            v.Questions.Select(q => (IReadOnlyList<string>)[q.Label, q.Period, q.Unit,
+                q.TrueValue is { } t ? F(t, q.Decimals) : "not yet known", q.TrueValueRecordedAt is { } at ? $"{at:yyyy-MM-dd}" : "–", N(q.Answers)]).ToList(),
+            [3.2, 0.9, 1.1, 1.2, 1.2, 0.9], new HashSet<int> { 3, 5 });
+
+        var s = v.Settings;
+        pdf.Paragraph($"Scored on round {(s.RoundNumber is { } r ? N(r) : "–")} ({(s.Round == "first" ? "round 1, by the panel's setting" : "the final closed round")}), "
+            + $"with the true values recorded by {now:yyyy-MM-dd HH:mm} UTC; {N(v.TruthsRecorded)} of {N(v.Questions.Count)} true values recorded. "
+            + $"Bins below P10, P10-P50, P50-P90 and above P90 with probabilities 0.1, 0.4, 0.4, 0.1; overshoot {Pct(s.Overshoot)} of the intrinsic range on each side; "
+            + (s.FixedCutoff is { } fixedCutoff ? $"cut-off fixed at {Score(fixedCutoff)}." : $"cut-off optimised{(s.CutoffUsed is { } used ? $" (α = {Score(used)})" : "")}."), 8.5);
+        if (v.Status is { } status)
+        {
+            pdf.Paragraph(status, 9, colour: "#555555");
+            return;
+        }
+
+        var rows = v.Experts.Select(e => (IReadOnlyList<string>)[e.PanelCode, N(e.N), string.Join(" · ", e.Hits), Score(e.Calibration), Score(e.Information), Score(e.Weight)]).ToList();
+        foreach (var c in new[] { v.Weighted, v.Equal }.OfType<CombinationLine>())
+        {
+            rows.Add([c.Name == "weighted" ? "Weighted combination" : "Equal-weight combination", N(c.N), string.Join(" · ", c.Hits), Score(c.Calibration), Score(c.Information), $"(combined {Score(c.Combined)})"]);
+        }
+        pdf.Table(["Panel code", "N", "Hits <P10 · P10-P50 · P50-P90 · >P90", "Calibration", "Information", "Weight"], rows,
+            [1.6, 0.5, 2.2, 1.1, 1.1, 1.3], new HashSet<int> { 1, 3, 4, 5 });
+        var n = v.Experts.Select(e => e.N).DefaultIfEmpty(0).Max();
+        pdf.Paragraph($"Calibration scores from fewer than about 8-10 questions carry little evidence; here N is at most {N(n)}.", 8.5, colour: n < 8 ? "#b00020" : "#555555");
+    }
+
+    /// <summary>A score or weight: three decimals, or scientific notation below 0.001.</summary>
+    private static string Score(double v) => v.ToString(v != 0 && Math.Abs(v) < 0.001 ? "0.00E+0" : "0.000", CultureInfo.InvariantCulture);
+
     private static void Appendix(PdfReport pdf, Panel panel)
     {
         pdf.NewPage();
@@ -192,6 +268,12 @@ public static partial class PanelDossier
             ["Moved share", "The share of experts whose answer moved by more than the panel's move threshold between consecutive rounds."],
             ["Wilcoxon p", "The Wilcoxon signed-rank test of paired answers between rounds (exact for small n, normal approximation with tie correction above): F. Wilcoxon, Biometrics Bulletin 1 (1945)."],
             ["Range consensus", "Quantile averaging of the experts' P10, P50 and P90 (trimmed, or weighted by track record)."],
+            .. panel.Questions.Any(q => q.IsCalibration)
+                ? new IReadOnlyList<string>[]
+                {
+                    ["Calibration and information", "Calibration 1 − F(2·N·I(s, p)) with F the chi-square distribution with 3 degrees of freedom; information against a uniform (or log-uniform) background on the intrinsic range; weight calibration × information above the cut-off: R. M. Cooke, Experts in Uncertainty (1991), chapter 12."],
+                }
+                : [],
         ], [1, 3]);
         var s = panel.Settings;
         pdf.Paragraph("Settings of this panel", 9.5, bold: true);

@@ -146,6 +146,58 @@ public class ClassicalModelTests
         Assert.Equal(100 - 2.162162, pooled.P90, 1e-5);
     }
 
+    // Cooke (1991), ch. 12: the pool of one expert is that expert, exactly, so a truth that sits on one of the
+    // expert's quantiles falls in the same bin for the expert and for the pool (values in quarters make this common).
+    // Seen before the fix: a positive weight w gave w·0.9/w ≠ 0.9 in the last bit, and the log-uniform scale gave
+    // exp(ln x) ≠ x, so the pooled quantile moved by an ulp off the expert's.
+    [Theory]
+    [InlineData(0.6523303675869048, BackgroundMeasure.Uniform)]
+    [InlineData(0.1, BackgroundMeasure.Uniform)]
+    [InlineData(0.3, BackgroundMeasure.LogUniform)]
+    [InlineData(7.7, BackgroundMeasure.LogUniform)]
+    public void LinearPool_OneExpertAnyWeight_ReturnsTheExpertsQuantilesExactly(double weight, BackgroundMeasure background)
+    {
+        for (var seed = 0; seed < 200; seed++)
+        {
+            var random = new Random(seed);
+            var p10 = random.Next(1, 400) / 4.0;
+            var answer = new RangeAnswer(p10, p10 + (random.Next(0, 80) / 4.0), p10 + (random.Next(80, 160) / 4.0));
+            var range = ClassicalModel.RangeOf([answer.P10, answer.P50, answer.P90, random.Next(1, 800) / 4.0], 0.10, background);
+
+            var pooled = LinearPool.Combine([answer], [weight], range);
+
+            Assert.Equal(answer, pooled);
+        }
+    }
+
+    // Invariant (common practice for any aggregate): the result depends on the set of questions and answers, not on
+    // their order. The case FsCheck found (replay (8338126655962816463,9548115295696957897,98), shrunk to seed 15,
+    // 4 experts, 6 questions): only expert E0 passes the optimised cut-off, one truth equals E0's P90, and in one
+    // order the weighted combination (E0 alone) counted it above P90 (as E0's own score does), in the other inside.
+    [Fact]
+    public void Evaluate_ShuffledPanelWithATruthOnAQuantile_ChangesNothing()
+    {
+        var (items, assessments) = CalibrationPanels.Random(15, experts: 4, questions: 6);
+        var random = new Random(15 ^ 0x5bd1e995);
+        var shuffledItems = items.ToArray();
+        random.Shuffle(shuffledItems);
+        var shuffledAssessments = assessments.ToArray();
+        random.Shuffle(shuffledAssessments);
+
+        var a = ClassicalModel.Evaluate(items, assessments, CalibrationSettings.Default);
+        var b = ClassicalModel.Evaluate(shuffledItems, shuffledAssessments, CalibrationSettings.Default);
+
+        Assert.Equal(a.Cutoff, b.Cutoff);
+        Assert.Equal(a.Weighted!.Hits, b.Weighted!.Hits);
+        Assert.Equal(a.Weighted.Combined, b.Weighted.Combined);
+        Assert.Equal(a.Equal.Combined, b.Equal.Combined);
+        Assert.Equal(a.Experts.Select(e => (e.Score.Key, e.Score.Calibration, e.Score.Information, e.Weight)),
+            b.Experts.Select(e => (e.Score.Key, e.Score.Calibration, e.Score.Information, e.Weight)));
+        // The weighted combination is E0 alone here, so it scores as E0 does.
+        var only = Assert.Single(a.Experts, e => e.Weight > 0);
+        Assert.Equal(only.Score.Hits, a.Weighted.Hits);
+    }
+
     // Cooke (1991), ch. 12: the optimised α is chosen among the experts' calibration scores, so it never scores below α = 0.
     [Fact]
     public void Evaluate_OptimisedCutoff_NeverScoresBelowCutoffZero()

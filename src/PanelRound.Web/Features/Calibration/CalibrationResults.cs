@@ -82,6 +82,25 @@ public sealed record EarlyRecordLine(
     double Calibration, double Information);
 
 /// <summary>
+/// An expert's early record over every panel with scored calibration questions, beside the long-horizon record on the scorecard.
+/// </summary>
+/// <param name="ExpertId">The expert.</param>
+/// <param name="Name">Their name (reviewer pages only).</param>
+/// <param name="Panels">Panels whose calibration questions scored them.</param>
+/// <param name="N">Calibration questions scored, over those panels.</param>
+/// <param name="Hits">Truths per bin (below P10, P10-P50, P50-P90, above P90), summed over the panels.</param>
+/// <param name="Calibration">1 − F(2·N·I(s, p)) of the summed hits: the calibration score over all N questions.</param>
+/// <param name="Information">The mean information over all N questions (each panel's mean weighted by its N).</param>
+/// <param name="LatestPanelId">The panel scored last (by the closing of the round scored).</param>
+/// <param name="LatestPanel">Its title.</param>
+/// <param name="LatestPanelCode">The expert's panel code there.</param>
+/// <param name="LatestRoundClosedOn">When the round scored there closed.</param>
+/// <param name="LatestWeight">The expert's normalised calibration-question weight on that panel.</param>
+public sealed record ExpertEarlyRecord(
+    int ExpertId, string Name, int Panels, int N, IReadOnlyList<int> Hits, double Calibration, double Information,
+    int LatestPanelId, string LatestPanel, string LatestPanelCode, DateOnly LatestRoundClosedOn, double LatestWeight);
+
+/// <summary>
 /// The staff's calibration views: a panel's scores and weights, the equal, track-record and
 /// calibration-weighted consensus side by side, the cross-validation, and an expert's early record.
 /// </summary>
@@ -105,7 +124,14 @@ public sealed class CalibrationResults(PanelRoundDbContext db, ScorecardService 
         {
             return null;
         }
-        var data = await CalibrationScoring.LoadAsync(db, panel);
+        return ViewOf(await CalibrationScoring.LoadAsync(db, panel));
+    }
+
+    /// <summary>The calibration figures of loaded data (the panel with its questions, their indicators and rounds).</summary>
+    public static PanelCalibrationView ViewOf(CalibrationData data)
+    {
+        ArgumentNullException.ThrowIfNull(data);
+        var panel = data.Panel;
         var result = data.Evaluate();
         var questions = data.Questions.Select(q => new CalibrationQuestionLine(
             q.Id, q.Label, q.TargetPeriods, q.Indicator!.UnitLabel, q.Indicator.Decimals, q.TrueValue, q.TrueValueRecordedAt, q.LogScale,
@@ -195,6 +221,46 @@ public sealed class CalibrationResults(PanelRoundDbContext db, ScorecardService 
                 truthsOn is { } t ? DateOnly.FromDateTime(t) : null, score.N, score.Hits, score.Calibration, score.Information));
         }
         return [.. lines.OrderByDescending(l => l.RoundClosedOn)];
+    }
+
+    /// <summary>
+    /// Every expert's early record, pooled over the panels with scored calibration questions (hits summed and scored
+    /// once, Cooke 1991, ch. 12; information averaged over all the questions), with the latest panel's weight; in name order.
+    /// </summary>
+    public async Task<IReadOnlyList<ExpertEarlyRecord>> EarlyRecordsAsync()
+    {
+        var panelIds = await db.Questions.AsNoTracking().Where(q => q.IsCalibration && q.TrueValue != null)
+            .Select(q => q.PanelId).Distinct().OrderBy(id => id).ToListAsync();
+        var memberships = await db.Memberships.AsNoTracking().Where(m => panelIds.Contains(m.PanelId))
+            .Select(m => new { m.Id, m.ExpertId, Name = m.Expert!.Name }).ToDictionaryAsync(m => m.Id);
+        var scored = new List<(int ExpertId, string Name, Panel Panel, string Code, DateOnly ClosedOn, ExpertPerformance Performance)>();
+        foreach (var panelId in panelIds)
+        {
+            var panel = (await PanelAsync(panelId))!;
+            var data = await CalibrationScoring.LoadAsync(db, panel);
+            if (data.Round is null || data.Evaluate() is not { } result)
+            {
+                continue;
+            }
+            var byCode = data.Codes.ToDictionary(c => c.Value, c => c.Key, StringComparer.Ordinal);
+            var closedOn = DateOnly.FromDateTime(data.Round.ClosedAt ?? data.Round.ClosesAt);
+            foreach (var e in result.Experts)
+            {
+                if (byCode.TryGetValue(e.Score.Key, out var membershipId) && memberships.TryGetValue(membershipId, out var m))
+                {
+                    scored.Add((m.ExpertId, m.Name, panel, e.Score.Key, closedOn, e));
+                }
+            }
+        }
+        return [.. scored.GroupBy(x => x.ExpertId).Select(g =>
+        {
+            var n = g.Sum(x => x.Performance.Score.N);
+            var hits = Enumerable.Range(0, 4).Select(j => g.Sum(x => x.Performance.Score.Hits[j])).ToArray();
+            var latest = g.OrderBy(x => x.ClosedOn).ThenBy(x => x.Panel.Id).Last();
+            return new ExpertEarlyRecord(g.Key, latest.Name, g.Count(), n, hits, ClassicalModel.CalibrationOf(hits).Calibration,
+                g.Sum(x => x.Performance.Score.N * x.Performance.Score.Information) / n,
+                latest.Panel.Id, latest.Panel.Title, latest.Code, latest.ClosedOn, latest.Performance.Weight);
+        }).OrderBy(r => r.Name, StringComparer.Ordinal).ThenBy(r => r.ExpertId)];
     }
 
     private static CalibrationSettingsUsed SettingsUsed(Panel panel, Round? round, ClassicalModelResult? result) => new(

@@ -1,13 +1,14 @@
 using Microsoft.AspNetCore.Authorization;
 using Microsoft.AspNetCore.Mvc;
 using Microsoft.AspNetCore.Mvc.RazorPages;
+using PanelRound.Web.Features.Calibration;
 using PanelRound.Web.Features.Scorecard;
 using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Pages.Staff.Scorecard;
 
 [Authorize(Policy = AuthSetup.ReviewerPolicy)]
-public class IndexModel(ScorecardService scorecard) : PageModel
+public class IndexModel(ScorecardService scorecard, CalibrationResults calibration) : PageModel
 {
     [BindProperty(SupportsGet = true)]
     public string? Indicator { get; set; }
@@ -17,7 +18,13 @@ public class IndexModel(ScorecardService scorecard) : PageModel
 
     public ScorecardView View { get; private set; } = null!;
 
-    public async Task OnGetAsync() =>
+    /// <summary>Each expert's early record from calibration questions (filters do not apply to it).</summary>
+    public IReadOnlyList<ExpertEarlyRecord> EarlyRecords { get; private set; } = [];
+
+    public async Task OnGetAsync()
+    {
         View = await scorecard.ScorecardAsync(new ScorecardFilter(
             string.IsNullOrWhiteSpace(Indicator) ? null : Indicator.Trim(), string.IsNullOrWhiteSpace(Period) ? null : Period.Trim()));
+        EarlyRecords = await calibration.EarlyRecordsAsync();
+    }
 }

@@ -20,6 +20,10 @@ public static class ScorecardFormat
 
     public static string Percent(double? share) => NumberText.Percent(share, 0);
 
+    /// <summary>A calibration score, information or weight: three decimals, or scientific notation below 0.001.</summary>
+    public static string Score(double value) =>
+        double.IsFinite(value) ? value.ToString(value != 0 && Math.Abs(value) < 0.001 ? "0.00E+0" : "0.000", CultureInfo.InvariantCulture) : Dash;
+
     /// <summary>The bias direction in words.</summary>
     public static string Bias(BiasDirection? bias) => bias switch
     {
