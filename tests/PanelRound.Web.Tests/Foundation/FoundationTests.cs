@@ -127,8 +127,9 @@ public abstract partial class FoundationTests(IDatabaseFixture fixture) : Provid
         });
         Assert.True(counts.Experts >= 12);
         Assert.Equal(4, counts.Panels);
-        // Six annual series and the ten quarterly figures behind the running panel's calibration questions.
-        Assert.Equal(16, counts.Indicators);
+        // Seven annual series (with the capital value of the running panel's relation) and the ten
+        // quarterly figures behind the running panel's calibration questions.
+        Assert.Equal(17, counts.Indicators);
         Assert.Equal(3, counts.Users);
         await first.DisposeAsync();
 
