@@ -29,13 +29,13 @@ public static class ReportsApi
 
     public static async Task<FileContentHttpResult> ScorecardCsv(string? indicator, string? period, ScorecardService scorecard)
     {
-        var card = (await ScorecardApi.GetScorecard(indicator, period, scorecard)).Value!;
+        var card = await ScorecardApi.BuildScorecardAsync(indicator, period, scorecard);
         return TypedResults.File(ScorecardReport.ToCsv(card), CsvType, "scorecard-experts.csv");
     }
 
     public static async Task<FileContentHttpResult> ScorecardPdf(string? indicator, string? period, ScorecardService scorecard, TimeProvider clock)
     {
-        var card = (await ScorecardApi.GetScorecard(indicator, period, scorecard)).Value!;
+        var card = await ScorecardApi.BuildScorecardAsync(indicator, period, scorecard);
         var backtest = (await ScorecardApi.GetBacktest(scorecard)).Value!;
         return TypedResults.File(ScorecardReport.ToPdf(card, backtest, clock.GetUtcNow().UtcDateTime), "application/pdf", "scorecard.pdf");
     }

@@ -37,7 +37,11 @@ public static class ScorecardApi
 
     public sealed record ScorecardDto(
         string? Indicator, string? Period, int Panels, IReadOnlyList<ScorecardExpertDto> Experts, ScorecardSummaryDto Consensus, ScorecardSummaryDto Naive,
-        DateOnly WeightsKnownBefore, double PseudoForecasts, string Caution, BenchmarkComparisonDto? Benchmarks = null);
+        DateOnly WeightsKnownBefore, double PseudoForecasts, string Caution, BenchmarkComparisonDto? Benchmarks = null,
+        int? Total = null, int Offset = 0, int? Limit = null);
+
+    /// <summary>The most experts one page of <c>GET /api/scorecard</c> carries.</summary>
+    public const int MaxPage = 1000;
 
     /// <summary>One benchmark scored like an expert; <c>comparedScaledMae</c> is its scaled MAE on the consensus's question-periods (null unless it covers all).</summary>
     public sealed record BenchmarkScoreDto(string Benchmark, ScorecardSummaryDto Summary, double? ComparedScaledMae);
@@ -71,7 +75,7 @@ public static class ScorecardApi
     {
         var group = app.MapGroup("/api/scorecard").WithTags("Scorecard").RequireAuthorization(AuthSetup.StaffPolicy);
         group.MapGet("/", GetScorecard).WithName("GetScorecard")
-            .WithSummary("Per expert (by external key) and for the consensus and the no-change forecast: n, MAE, mean error, RMSE, scaled MAE, coverage and interval score; optional filters indicator and period.");
+            .WithSummary("Per expert (by external key) and for the consensus and the no-change forecast: n, MAE, mean error, RMSE, scaled MAE, coverage and interval score; optional filters indicator and period, and paging with limit (1-1000) and offset (total: experts before paging).");
         group.MapGet("/backtest", GetBacktest).WithName("GetBacktest")
             .WithSummary("Per past panel and pooled: scaled MAE of the equal-weight and the track-record consensus, weights known before each panel closed; per panel, the consensus's skill against no change and against the best benchmark.");
         app.MapGet("/api/panels/{id:int}/consensus/compare", CompareConsensus).WithTags("Panels").RequireAuthorization(AuthSetup.StaffPolicy)
@@ -80,7 +84,34 @@ public static class ScorecardApi
         return app;
     }
 
-    public static async Task<Ok<ScorecardDto>> GetScorecard(string? indicator, string? period, ScorecardService scorecard)
+    /// <summary>
+    /// The scorecard, optionally one page of its experts (<c>limit</c>, <c>offset</c>, in rank
+    /// order); <c>total</c> is the number of experts before paging, and ranks and weights are always
+    /// those of the whole scorecard. Without paging every expert is listed, as before.
+    /// </summary>
+    public static async Task<Results<Ok<ScorecardDto>, ValidationProblem>> GetScorecard(
+        string? indicator, string? period, int? limit, int? offset, ScorecardService scorecard)
+    {
+        var errors = new Dictionary<string, string[]>();
+        if (limit is < 1 or > MaxPage)
+        {
+            errors["limit"] = [$"limit is 1 to {MaxPage}."];
+        }
+        if (offset is < 0)
+        {
+            errors["offset"] = ["offset is 0 or more."];
+        }
+        if (errors.Count > 0)
+        {
+            return TypedResults.ValidationProblem(errors, title: "The input has errors.");
+        }
+        var card = await BuildScorecardAsync(indicator, period, scorecard);
+        var page = card.Experts.Skip(offset ?? 0).Take(limit ?? int.MaxValue).ToList();
+        return TypedResults.Ok(card with { Experts = page, Total = card.Experts.Count, Offset = offset ?? 0, Limit = limit });
+    }
+
+    /// <summary>The whole scorecard, as the files (CSV, PDF) carry it.</summary>
+    public static async Task<ScorecardDto> BuildScorecardAsync(string? indicator, string? period, ScorecardService scorecard)
     {
         var view = await scorecard.ScorecardAsync(new ScorecardFilter(Blank(indicator), Blank(period)));
         var experts = view.Experts.Select(l =>
@@ -93,9 +124,9 @@ public static class ScorecardApi
                 f.NScaledNaive, F(f.ScaledSkill), l.Score.FinalPaired.NScaled, F(l.Score.FirstToFinalChange),
                 l.Score.Ranked, l.Score.Rank, l.PointWeight.N, F(l.PointWeight.Weight), l.RangeWeight?.N, F(l.RangeWeight?.Weight));
         }).ToList();
-        return TypedResults.Ok(new ScorecardDto(view.Filter.Indicator, view.Filter.Period, view.Panels, experts,
+        return new ScorecardDto(view.Filter.Indicator, view.Filter.Period, view.Panels, experts,
             ScorecardSummaryDto.From(view.Consensus), ScorecardSummaryDto.From(view.Naive), view.WeightsKnownBefore, view.PseudoForecasts, Caution,
-            view.Benchmarks is null ? null : BenchmarkComparisonDto.From(view.Benchmarks)));
+            view.Benchmarks is null ? null : BenchmarkComparisonDto.From(view.Benchmarks), experts.Count);
     }
 
     public static async Task<Ok<BacktestDto>> GetBacktest(ScorecardService scorecard)
