@@ -21,9 +21,9 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
 {
     private DateTime Now => clock.GetUtcNow().UtcDateTime;
 
-    public async Task<ExpertForm> GetFormAsync(int membershipId)
+    /// <summary>The form behind a personal link, for the membership the request's credential resolved (not read again).</summary>
+    public async Task<ExpertForm> GetFormAsync(PanelMembership m)
     {
-        var m = await db.Memberships.AsNoTracking().SingleAsync(x => x.Id == membershipId);
         var panel = await db.Panels.AsNoTracking().Include(p => p.Questions).ThenInclude(q => q.Indicator).Include(p => p.Rounds).SingleAsync(p => p.Id == m.PanelId);
         var (round, canAnswer, reason) = Status(panel);
         // The feedback shown is the previous round's: round k-1 while round k is open, else the last closed round's.

@@ -58,7 +58,7 @@ public static class ExpertApi
         var m = Own(ctx);
         return m.PanelId != panelId
             ? ApiResults.NotFound($"Panel {panelId} is not reachable with this link.")
-            : TypedResults.Ok(await answers.GetFormAsync(m.Id));
+            : TypedResults.Ok(await answers.GetFormAsync(m));
     }
 
     public static async Task<Results<Ok<SubmissionReceipt>, ValidationProblem, ProblemHttpResult>> Submit(

@@ -1,6 +1,7 @@
 using System.Globalization;
 using Microsoft.AspNetCore.Mvc;
 using Microsoft.AspNetCore.Mvc.RazorPages;
+using Microsoft.EntityFrameworkCore;
 using PanelRound.Core.Domain;
 using PanelRound.Data;
 using PanelRound.Web.Features.Answers;
@@ -80,12 +81,14 @@ public class IndexModel(PanelRoundDbContext db, ExpertAnswers answers, ExpertBen
 
     public async Task<IActionResult> OnGetAsync()
     {
+        // One connection for the whole request, not one per query.
+        await db.Database.OpenConnectionAsync(HttpContext.RequestAborted);
         var m = await ExpertAccess.CurrentAsync(HttpContext, db);
         if (m is null)
         {
             return RedirectToPage("LinkNeeded");
         }
-        Form = await answers.GetFormAsync(m.Id);
+        Form = await answers.GetFormAsync(m);
         await LoadExtrasAsync(m.Id);
         Warnings = SavedWarnings is { Length: > 0 } w ? w.Split('\n') : [];
         Decimals = Decimals is "comma" or "point" ? Decimals : DefaultSeparator(Request.Headers.AcceptLanguage.ToString());
@@ -113,6 +116,8 @@ public class IndexModel(PanelRoundDbContext db, ExpertAnswers answers, ExpertBen
 
     public async Task<IActionResult> OnPostAsync(string action)
     {
+        // One connection for the whole request, not one per query.
+        await db.Database.OpenConnectionAsync(HttpContext.RequestAborted);
         var m = await ExpertAccess.CurrentAsync(HttpContext, db);
         if (m is null)
         {
@@ -153,7 +158,7 @@ public class IndexModel(PanelRoundDbContext db, ExpertAnswers answers, ExpertBen
             ModelState.AddResult(result, "");
             Conflict = result.Kind == ResultKind.Conflict ? result.Message : null;
         }
-        Form = await answers.GetFormAsync(m.Id);
+        Form = await answers.GetFormAsync(m);
         await LoadExtrasAsync(m.Id);
         FormKey = NewFormKey();
         ModelState.Remove(nameof(FormKey));
