@@ -16,6 +16,9 @@ internal sealed class AppProcess(string appDll, string connectionString) : IAsyn
 
     public Uri BaseAddress => new($"http://127.0.0.1:{Port}/");
 
+    /// <summary>The running app's process id (for its memory in /proc), or null when it is not running.</summary>
+    public int? ProcessId => _process?.Id;
+
     private ProcessStartInfo StartInfo(params string[] args)
     {
         var psi = new ProcessStartInfo("dotnet") { RedirectStandardOutput = true, RedirectStandardError = true, WorkingDirectory = Path.GetDirectoryName(appDll)! };

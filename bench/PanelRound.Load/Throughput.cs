@@ -96,7 +96,8 @@ internal static class Throughput
 
     private sealed record Ids(int RoundId, int PanelId, int[] Memberships, int IndicatorId);
 
-    private static async Task<string> CreateDatabaseAsync(string admin, string name)
+    /// <summary>Creates a database on the server and returns its connection string.</summary>
+    internal static async Task<string> CreateDatabaseAsync(string admin, string name)
     {
         await using var conn = new NpgsqlConnection(admin);
         await conn.OpenAsync();

@@ -22,10 +22,13 @@ public static class CsvUploads
         var table = CsvFiles.Read(csv);
         foreach (var e in table.Errors)
         {
-            errors.Add(e.Row == 0 ? file ?? "file" : RowKey(file, e.Row), e.Message);
+            errors.Add(ErrorKey(file, e), e.Message);
         }
         return table.IsValid ? table : null;
     }
+
+    /// <summary>The error key of an error of an uploaded CSV file: its row's key, or the file's own (<c>forecasts</c>, or <c>file</c>) for the header or the whole file.</summary>
+    public static string ErrorKey(string? file, CsvError error) => error.Row == 0 ? file ?? "file" : RowKey(file, error.Row);
 
     /// <summary>The error key of a row of an uploaded CSV file: <c>row 3</c>, or <c>forecasts row 3</c> for a named file.</summary>
     public static string RowKey(string? file, int row) => file is null ? $"row {row}" : $"{file} row {row}";

@@ -63,6 +63,127 @@ public sealed class RowErrorReport
     }
 }
 
+/// <summary>A question of a past panel as the forecasts file asks it: its indicator, its format and the target periods of its rows.</summary>
+public sealed class PastQuestionPlan(string indicator, bool isRange, bool calibration, Period firstPeriod)
+{
+    public string Indicator { get; } = indicator;
+
+    public bool IsRange { get; } = isRange;
+
+    public bool Calibration { get; } = calibration;
+
+    /// <summary>The target period of the question's first row (a calibration question has only this one).</summary>
+    public Period FirstPeriod { get; } = firstPeriod;
+
+    /// <summary>The target periods of its rows, in order.</summary>
+    public SortedSet<Period> Periods { get; } = [];
+}
+
+/// <summary>A past panel as the forecasts file describes it: everything but its forecasts.</summary>
+public sealed class PastPanelPlan(string key, DateOnly start, DateOnly? closed, int firstRow)
+{
+    private readonly Dictionary<string, PastQuestionPlan> _questions = new(StringComparer.Ordinal);
+    private readonly HashSet<string> _experts = new(StringComparer.Ordinal);
+
+    public string Key { get; } = key;
+
+    public DateOnly Start { get; } = start;
+
+    /// <summary>The day it concluded, as its first row gives it.</summary>
+    public DateOnly? Closed { get; } = closed;
+
+    /// <summary>The panel's first data row.</summary>
+    public int FirstRow { get; } = firstRow;
+
+    /// <summary>Its questions, one per indicator, in the order the file first names them.</summary>
+    public List<PastQuestionPlan> Questions { get; } = [];
+
+    /// <summary>Its experts, in the order the file first names them.</summary>
+    public List<string> Experts { get; } = [];
+
+    /// <summary>Its round numbers, in order.</summary>
+    public SortedSet<int> Rounds { get; } = [];
+
+    /// <summary>The target periods of its questions that are not calibration questions, in order.</summary>
+    public SortedSet<Period> ForecastPeriods { get; } = [];
+
+    /// <summary>The target periods of all its questions, in order.</summary>
+    public SortedSet<Period> AllPeriods { get; } = [];
+
+    /// <summary>The panel's target periods: those of its forecast questions, or of its calibration questions when it has only those.</summary>
+    public IEnumerable<Period> TargetPeriods => ForecastPeriods.Count > 0 ? ForecastPeriods : AllPeriods;
+
+    public PastQuestionPlan Question(string indicator) => _questions[indicator];
+
+    internal void Add(PastForecastRow row)
+    {
+        if (!_questions.TryGetValue(row.Indicator, out var question))
+        {
+            _questions[row.Indicator] = question = new PastQuestionPlan(row.Indicator, row.IsRange, row.Calibration, row.Period);
+            Questions.Add(question);
+        }
+        question.Periods.Add(row.Period);
+        if (_experts.Add(row.Expert))
+        {
+            Experts.Add(row.Expert);
+        }
+        Rounds.Add(row.Round);
+        AllPeriods.Add(row.Period);
+        if (!row.Calibration)
+        {
+            ForecastPeriods.Add(row.Period);
+        }
+    }
+}
+
+/// <summary>
+/// What a forecasts file holds apart from its forecasts: the panels with their questions, experts and
+/// rounds, the indicators and the experts, each in the order the file first names it. Its size grows
+/// with the number of panels and experts, not with the number of forecasts.
+/// </summary>
+public sealed class PastForecastSummary
+{
+    private readonly Dictionary<string, PastPanelPlan> _panels = new(StringComparer.Ordinal);
+    private readonly HashSet<string> _indicators = new(StringComparer.Ordinal);
+    private readonly HashSet<string> _experts = new(StringComparer.Ordinal);
+
+    /// <summary>The panels, in the order of their first rows.</summary>
+    public List<PastPanelPlan> Panels { get; } = [];
+
+    /// <summary>The indicators with the unit and row of their first forecast.</summary>
+    public List<(string Indicator, string Unit, int FirstRow)> Indicators { get; } = [];
+
+    /// <summary>The experts' keys.</summary>
+    public List<string> Experts { get; } = [];
+
+    /// <summary>How many forecasts the file holds.</summary>
+    public int Rows { get; private set; }
+
+    public bool HasIndicator(string indicator) => _indicators.Contains(indicator);
+
+    public void Add(PastForecastRow row)
+    {
+        Rows++;
+        if (!_panels.TryGetValue(row.Panel, out var panel))
+        {
+            _panels[row.Panel] = panel = new PastPanelPlan(row.Panel, row.PanelStart, row.PanelClosed, row.Row);
+            Panels.Add(panel);
+        }
+        panel.Add(row);
+        if (_indicators.Add(row.Indicator))
+        {
+            Indicators.Add((row.Indicator, row.Unit, row.Row));
+        }
+        if (_experts.Add(row.Expert))
+        {
+            Experts.Add(row.Expert);
+        }
+    }
+}
+
+/// <summary>Both files of an import of past panels as read: the summary of the forecasts (the forecasts themselves are read again as they are stored) and the observations.</summary>
+public sealed record PastPanelFiles(PastForecastSummary Forecasts, IReadOnlyList<PastObservationRow> Observations);
+
 /// <summary>
 /// Reads the two files of an import of past panels (<see cref="PastPanelImport"/> documents the
 /// columns) into rows, or row errors keyed <c>forecasts row 3</c> / <c>observations row 3</c> (the
@@ -70,6 +191,12 @@ public sealed class RowErrorReport
 /// and across rows one start per panel, one unit per indicator, one format per question, no
 /// duplicates. Pure: no database, no clock (today is given).
 /// </summary>
+/// <remarks>
+/// The forecasts file is read a row at a time (<see cref="CsvFileReader"/>); what is kept of it is
+/// the summary (<see cref="PastForecastSummary"/>), except that finding a forecast given twice
+/// needs every key seen: <see cref="Read"/> does that only when asked, since the import finds
+/// them in the database instead and asks only to report them.
+/// </remarks>
 public static class PastPanelCsv
 {
     /// <summary>The columns the forecasts file must have, besides value or p10, p50 and p90 (optional: panel_closed, calibration).</summary>
@@ -85,12 +212,52 @@ public static class PastPanelCsv
     /// <param name="lagDays">The publication lag assumed for observations without <c>observed_on</c> (<see cref="ObservationDates.AssumedObservedOn"/>).</param>
     public static Result<PastPanelRows> Parse(Stream forecasts, Stream? observations, DateOnly today, int lagDays)
     {
-        var report = new RowErrorReport();
-        var forecastRows = ParseForecasts(forecasts, report);
+        var rows = new List<PastForecastRow>();
+        var read = Read(forecasts, observations, today, lagDays, findDuplicates: true, rows.Add);
+        return read.IsOk ? Result<PastPanelRows>.Ok(new PastPanelRows(rows, read.Value!.Observations)) : read.As<PastPanelRows>();
+    }
+
+    /// <summary>
+    /// Reads both files, the forecasts a row at a time: their summary and the observations, or every
+    /// row error of both (the same errors as <see cref="Parse"/>, less forecasts given twice unless
+    /// <paramref name="findDuplicates"/>).
+    /// </summary>
+    /// <param name="forecasts">The forecasts file.</param>
+    /// <param name="observations">The observations file, if any.</param>
+    /// <param name="today">Today: an observation is known at the latest today.</param>
+    /// <param name="lagDays">The publication lag assumed for observations without <c>observed_on</c>.</param>
+    /// <param name="findDuplicates">Whether to refuse a forecast given twice, which keeps a key of every forecast in memory.</param>
+    /// <param name="onRow">Called with each valid forecast, in file order, before the file is known to be valid.</param>
+    public static Result<PastPanelFiles> Read(
+        Stream forecasts, Stream? observations, DateOnly today, int lagDays, bool findDuplicates, Action<PastForecastRow>? onRow = null)
+    {
+        var summary = new PastForecastSummary();
+        var report = ReadForecasts(forecasts, new PastForecastChecker(findDuplicates), row =>
+        {
+            summary.Add(row);
+            onRow?.Invoke(row);
+        }, out var forecastsRead);
         var observationRows = observations is null ? [] : ParseObservations(observations, report, today, lagDays);
-        return report.Count > 0 || forecastRows is null || observationRows is null
-            ? Result<PastPanelRows>.Invalid(report.ToFieldErrors())
-            : Result<PastPanelRows>.Ok(new PastPanelRows(forecastRows, observationRows));
+        return report.Count > 0 || !forecastsRead || observationRows is null
+            ? Result<PastPanelFiles>.Invalid(report.ToFieldErrors())
+            : Result<PastPanelFiles>.Ok(new PastPanelFiles(summary, observationRows));
+    }
+
+    /// <summary>The forecasts of a file that <see cref="Read"/> found valid, a row at a time, in file order.</summary>
+    /// <exception cref="InvalidDataException">The file is not valid (it changed since it was read).</exception>
+    public static IEnumerable<PastForecastRow> ForecastRows(Stream forecasts)
+    {
+        var reader = CsvFileReader.Open(forecasts);
+        var checker = new PastForecastChecker(findDuplicates: false);
+        var report = new RowErrorReport();
+        foreach (var r in reader.ReadRows())
+        {
+            yield return checker.Check(r, report) ?? throw new InvalidDataException($"Forecasts row {r.Row} is not valid on a second reading.");
+        }
+        if (reader.Errors.Count > 0)
+        {
+            throw new InvalidDataException("The forecasts file is not valid on a second reading.");
+        }
     }
 
     /// <summary>Reads one of the files as every CSV import does; its errors go to the report.</summary>
@@ -108,194 +275,57 @@ public static class PastPanelCsv
         return table;
     }
 
-    private static List<PastForecastRow>? ParseForecasts(Stream stream, RowErrorReport report)
+    /// <summary>
+    /// Reads the forecasts file a row at a time, passing each valid row on. Returns the report to go on
+    /// with: as if the whole file were read first, the errors of the file (CSV) come alone, then those
+    /// of its header alone, else the rows' errors.
+    /// </summary>
+    private static RowErrorReport ReadForecasts(Stream stream, PastForecastChecker checker, Action<PastForecastRow> onRow, out bool read)
     {
-        var table = ReadCsv(stream, "forecasts", report);
-        if (table is null)
-        {
-            return null;
-        }
-        var (headers, rows) = (table.Headers, table.Rows);
+        var reader = CsvFileReader.Open(stream);
+        var headers = reader.Headers;
+        var headerReport = new RowErrorReport();
         var missing = ForecastColumns.Where(c => !headers.Contains(c)).ToList();
         var hasValue = headers.Contains("value");
         var hasRange = headers.Contains("p10") && headers.Contains("p50") && headers.Contains("p90");
         if (missing.Count > 0)
         {
-            report.Add("forecasts", "The header row lacks " + string.Join(", ", missing) + ".");
+            headerReport.Add("forecasts", "The header row lacks " + string.Join(", ", missing) + ".");
         }
         if (!hasValue && !hasRange)
         {
-            report.Add("forecasts", "The header row needs a 'value' column or the columns 'p10', 'p50' and 'p90'.");
+            headerReport.Add("forecasts", "The header row needs a 'value' column or the columns 'p10', 'p50' and 'p90'.");
         }
-        if (rows.Count == 0)
+        var rowReport = new RowErrorReport();
+        var count = 0;
+        foreach (var r in reader.ReadRows())
         {
-            report.Add("forecasts", "The file has no data rows.");
+            count++;
+            if (headerReport.Count == 0 && checker.Check(r, rowReport) is { } row)
+            {
+                onRow(row);
+            }
         }
-        if (report.Count > 0)
+        read = false;
+        if (reader.Errors.Count > 0)
         {
-            return null;
+            var fileReport = new RowErrorReport();
+            foreach (var e in reader.Errors)
+            {
+                fileReport.Add(CsvUploads.ErrorKey("forecasts", e), e.Message);
+            }
+            return fileReport;
         }
-
-        var result = new List<PastForecastRow>(rows.Count);
-        var panelStarts = new Dictionary<string, (DateOnly Start, DateOnly? Closed)>(StringComparer.Ordinal);
-        var units = new Dictionary<string, string>(StringComparer.Ordinal);
-        var formats = new Dictionary<(string, string), bool>();
-        var kinds = new Dictionary<(string, string), (bool Calibration, Period Period)>();
-        var seen = new HashSet<(string, string, Period, string, int)>();
-        var panelPeriods = new Dictionary<string, HashSet<Period>>(StringComparer.Ordinal);
-        foreach (var r in rows)
+        if (count == 0)
         {
-            var key = CsvUploads.RowKey("forecasts", r.Row);
-            var before = report.Count;
-            void Error(string message) => report.Add(key, $"Row {r.Row} (line {r.Line}): {message}");
-
-            var panel = r["panel"];
-            if (panel is null)
-            {
-                Error("panel is empty.");
-            }
-            else if (panel.Length > FieldLengths.ExternalKey)
-            {
-                Error($"panel is at most {FieldLengths.ExternalKey} characters.");
-            }
-            var start = CsvUploads.ParseDate(r["panel_start"], out _);
-            if (start is null)
-            {
-                Error($"panel_start '{r["panel_start"]}' is not a date (yyyy-MM-dd).");
-            }
-            var closed = CsvUploads.ParseDate(r["panel_closed"], out var badClosed);
-            if (badClosed)
-            {
-                Error($"panel_closed '{r["panel_closed"]}' is not a date (yyyy-MM-dd).");
-            }
-            else if (closed < start)
-            {
-                Error("panel_closed is before panel_start.");
-            }
-            var indicator = r["indicator"]?.ToLowerInvariant();
-            if (indicator is null || indicator.Length > FieldLengths.IndicatorKey || !IndicatorKeys.IsWellFormed(indicator))
-            {
-                Error($"indicator '{r["indicator"]}' is not a key (lower-case letters, digits and dashes, e.g. apt-price-old-harbour).");
-                indicator = null;
-            }
-            var unit = r["unit"];
-            if (unit is null || unit.Length > FieldLengths.UnitLabel)
-            {
-                Error($"unit is empty or longer than {FieldLengths.UnitLabel} characters.");
-            }
-            var calibrationText = r["calibration"];
-            var calibration = calibrationText is "1";
-            if (calibrationText is not (null or "0" or "1"))
-            {
-                Error($"calibration '{calibrationText}' is 0 or 1 (1: a calibration question, whose true value is the indicator's observation at the target period).");
-            }
-            if (!Period.TryParse(r["target_period"], out var period))
-            {
-                Error($"target_period '{r["target_period"]}' is not a period: write a year such as 2024 or a quarter such as 2024Q3.");
-            }
-            // A calibration question usually asks about a period that has just ended, before the panel's start.
-            else if (!calibration && start is { } s && period.Value.EndDate < s)
-            {
-                Error($"target_period {period} ends before panel_start {s:yyyy-MM-dd}: a target period lies after the panel's start.");
-            }
-            var expert = r["expert"];
-            if (expert is null || expert.Length > FieldLengths.ExternalKey)
-            {
-                Error($"expert is empty or longer than {FieldLengths.ExternalKey} characters.");
-            }
-            if (!int.TryParse(r["round"], NumberStyles.None, CultureInfo.InvariantCulture, out var round) || round is < 1 or > 50)
-            {
-                Error($"round '{r["round"]}' is not a round number (1, 2, ...).");
-            }
-            var value = CsvUploads.ParseNumber(r["value"], out var badValue);
-            var p10 = CsvUploads.ParseNumber(r["p10"], out var bad10);
-            var p50 = CsvUploads.ParseNumber(r["p50"], out var bad50);
-            var p90 = CsvUploads.ParseNumber(r["p90"], out var bad90);
-            var badNumbers = new[] { ("value", badValue), ("p10", bad10), ("p50", bad50), ("p90", bad90) }.Where(b => b.Item2 is not null).ToList();
-            foreach (var (name, bad) in badNumbers)
-            {
-                Error($"{name} {bad}");
-            }
-            if (badNumbers.Count == 0)
-            {
-                var parts = (p10 is null ? 0 : 1) + (p50 is null ? 0 : 1) + (p90 is null ? 0 : 1);
-                if (value is not null && parts > 0)
-                {
-                    Error("give either value or p10, p50 and p90, not both.");
-                }
-                else if (value is null && parts != 3)
-                {
-                    Error("give value, or all of p10, p50 and p90.");
-                }
-                else if (parts == 3 && !(p10 <= p50 && p50 <= p90))
-                {
-                    Error("the range must satisfy p10 <= p50 <= p90.");
-                }
-                else if (calibration && parts != 3)
-                {
-                    Error("a calibration question is answered with a range: give p10, p50 and p90.");
-                }
-            }
-            if (report.Count > before)
-            {
-                continue;
-            }
-
-            // Cross-row rules: one start per panel, one unit per indicator, one format per question, no duplicates.
-            if (panelStarts.TryGetValue(panel!, out var known))
-            {
-                if (known.Start != start || (closed is not null && known.Closed != closed))
-                {
-                    Error($"panel '{panel}' has another panel_start or panel_closed on an earlier row.");
-                }
-            }
-            else
-            {
-                panelStarts[panel!] = (start!.Value, closed);
-            }
-            if (units.TryGetValue(indicator!, out var knownUnit) && !string.Equals(knownUnit, unit, StringComparison.Ordinal))
-            {
-                Error($"indicator '{indicator}' has unit '{knownUnit}' on an earlier row.");
-            }
-            units.TryAdd(indicator!, unit!);
-            var isRange = value is null;
-            if (formats.TryGetValue((panel!, indicator!), out var wasRange) && wasRange != isRange)
-            {
-                Error($"panel '{panel}' asks about '{indicator}' with {(wasRange ? "ranges (p10, p50, p90)" : "single values")} on earlier rows; one question has one response format.");
-            }
-            formats.TryAdd((panel!, indicator!), isRange);
-            if (kinds.TryGetValue((panel!, indicator!), out var known2))
-            {
-                if (known2.Calibration != calibration)
-                {
-                    Error($"panel '{panel}' asks about '{indicator}' with calibration {(known2.Calibration ? 1 : 0)} on earlier rows; one question is a calibration question or not.");
-                }
-                else if (calibration && known2.Period != period!.Value)
-                {
-                    Error($"panel '{panel}' has calibration question '{indicator}' about {known2.Period} on earlier rows; a calibration question asks about one period.");
-                }
-            }
-            kinds.TryAdd((panel!, indicator!), (calibration, period!.Value));
-            if (!seen.Add((panel!, indicator!, period!.Value, expert!, round)))
-            {
-                Error($"expert '{expert}' has another forecast of {indicator} {period} in round {round} of panel '{panel}'.");
-            }
-            if (!panelPeriods.TryGetValue(panel!, out var periods))
-            {
-                panelPeriods[panel!] = periods = [];
-            }
-            if (periods.Add(period.Value) && periods.Count > 60)
-            {
-                Error($"panel '{panel}' has more than 60 target periods.");
-            }
-            if (report.Count > before)
-            {
-                continue;
-            }
-            result.Add(new PastForecastRow(r.Row, panel!, start!.Value, closed ?? panelStarts[panel!].Closed, indicator!, unit!, period.Value, expert!, round,
-                value, isRange ? p10 : null, isRange ? p50 : null, isRange ? p90 : null, calibration));
+            headerReport.Add("forecasts", "The file has no data rows.");
         }
-        return result;
+        if (headerReport.Count > 0)
+        {
+            return headerReport;
+        }
+        read = true;
+        return rowReport;
     }
 
     private static List<PastObservationRow>? ParseObservations(Stream stream, RowErrorReport report, DateOnly today, int lagDays)
@@ -368,5 +398,175 @@ public static class PastPanelCsv
             result.Add(new PastObservationRow(r.Row, indicator!, period.Value, value!.Value, source, observedOn, decimals));
         }
         return result;
+    }
+}
+
+/// <summary>
+/// Checks the rows of a forecasts file one at a time, in file order: each field, and the rules across
+/// rows (one start per panel, one unit per indicator, one format per question, at most 60 target
+/// periods per panel and, when asked, no forecast given twice). What it keeps grows with the panels,
+/// indicators and experts, and with the forecasts only when it finds those given twice.
+/// </summary>
+internal sealed class PastForecastChecker(bool findDuplicates)
+{
+    private readonly Dictionary<string, (DateOnly Start, DateOnly? Closed)> _panelStarts = new(StringComparer.Ordinal);
+    private readonly Dictionary<string, string> _units = new(StringComparer.Ordinal);
+    private readonly Dictionary<(string, string), bool> _formats = [];
+    private readonly Dictionary<(string, string), (bool Calibration, Period Period)> _kinds = [];
+    private readonly HashSet<(string, string, Period, string, int)>? _seen = findDuplicates ? [] : null;
+    private readonly Dictionary<string, HashSet<Period>> _panelPeriods = new(StringComparer.Ordinal);
+
+    /// <summary>The row, or null when it has errors (added to the report).</summary>
+    public PastForecastRow? Check(CsvRow r, RowErrorReport report)
+    {
+        var key = CsvUploads.RowKey("forecasts", r.Row);
+        var before = report.Count;
+        void Error(string message) => report.Add(key, $"Row {r.Row} (line {r.Line}): {message}");
+
+        var panel = r["panel"];
+        if (panel is null)
+        {
+            Error("panel is empty.");
+        }
+        else if (panel.Length > FieldLengths.ExternalKey)
+        {
+            Error($"panel is at most {FieldLengths.ExternalKey} characters.");
+        }
+        var start = CsvUploads.ParseDate(r["panel_start"], out _);
+        if (start is null)
+        {
+            Error($"panel_start '{r["panel_start"]}' is not a date (yyyy-MM-dd).");
+        }
+        var closed = CsvUploads.ParseDate(r["panel_closed"], out var badClosed);
+        if (badClosed)
+        {
+            Error($"panel_closed '{r["panel_closed"]}' is not a date (yyyy-MM-dd).");
+        }
+        else if (closed < start)
+        {
+            Error("panel_closed is before panel_start.");
+        }
+        var indicator = r["indicator"]?.ToLowerInvariant();
+        if (indicator is null || indicator.Length > FieldLengths.IndicatorKey || !IndicatorKeys.IsWellFormed(indicator))
+        {
+            Error($"indicator '{r["indicator"]}' is not a key (lower-case letters, digits and dashes, e.g. apt-price-old-harbour).");
+            indicator = null;
+        }
+        var unit = r["unit"];
+        if (unit is null || unit.Length > FieldLengths.UnitLabel)
+        {
+            Error($"unit is empty or longer than {FieldLengths.UnitLabel} characters.");
+        }
+        var calibrationText = r["calibration"];
+        var calibration = calibrationText is "1";
+        if (calibrationText is not (null or "0" or "1"))
+        {
+            Error($"calibration '{calibrationText}' is 0 or 1 (1: a calibration question, whose true value is the indicator's observation at the target period).");
+        }
+        if (!Period.TryParse(r["target_period"], out var period))
+        {
+            Error($"target_period '{r["target_period"]}' is not a period: write a year such as 2024 or a quarter such as 2024Q3.");
+        }
+        // A calibration question usually asks about a period that has just ended, before the panel's start.
+        else if (!calibration && start is { } s && period.Value.EndDate < s)
+        {
+            Error($"target_period {period} ends before panel_start {s:yyyy-MM-dd}: a target period lies after the panel's start.");
+        }
+        var expert = r["expert"];
+        if (expert is null || expert.Length > FieldLengths.ExternalKey)
+        {
+            Error($"expert is empty or longer than {FieldLengths.ExternalKey} characters.");
+        }
+        if (!int.TryParse(r["round"], NumberStyles.None, CultureInfo.InvariantCulture, out var round) || round is < 1 or > 50)
+        {
+            Error($"round '{r["round"]}' is not a round number (1, 2, ...).");
+        }
+        var value = CsvUploads.ParseNumber(r["value"], out var badValue);
+        var p10 = CsvUploads.ParseNumber(r["p10"], out var bad10);
+        var p50 = CsvUploads.ParseNumber(r["p50"], out var bad50);
+        var p90 = CsvUploads.ParseNumber(r["p90"], out var bad90);
+        var badNumbers = new[] { ("value", badValue), ("p10", bad10), ("p50", bad50), ("p90", bad90) }.Where(b => b.Item2 is not null).ToList();
+        foreach (var (name, bad) in badNumbers)
+        {
+            Error($"{name} {bad}");
+        }
+        if (badNumbers.Count == 0)
+        {
+            var parts = (p10 is null ? 0 : 1) + (p50 is null ? 0 : 1) + (p90 is null ? 0 : 1);
+            if (value is not null && parts > 0)
+            {
+                Error("give either value or p10, p50 and p90, not both.");
+            }
+            else if (value is null && parts != 3)
+            {
+                Error("give value, or all of p10, p50 and p90.");
+            }
+            else if (parts == 3 && !(p10 <= p50 && p50 <= p90))
+            {
+                Error("the range must satisfy p10 <= p50 <= p90.");
+            }
+            else if (calibration && parts != 3)
+            {
+                Error("a calibration question is answered with a range: give p10, p50 and p90.");
+            }
+        }
+        if (report.Count > before)
+        {
+            return null;
+        }
+
+        // Cross-row rules: one start per panel, one unit per indicator, one format per question, no duplicates.
+        if (_panelStarts.TryGetValue(panel!, out var known))
+        {
+            if (known.Start != start || (closed is not null && known.Closed != closed))
+            {
+                Error($"panel '{panel}' has another panel_start or panel_closed on an earlier row.");
+            }
+        }
+        else
+        {
+            _panelStarts[panel!] = (start!.Value, closed);
+        }
+        if (_units.TryGetValue(indicator!, out var knownUnit) && !string.Equals(knownUnit, unit, StringComparison.Ordinal))
+        {
+            Error($"indicator '{indicator}' has unit '{knownUnit}' on an earlier row.");
+        }
+        _units.TryAdd(indicator!, unit!);
+        var isRange = value is null;
+        if (_formats.TryGetValue((panel!, indicator!), out var wasRange) && wasRange != isRange)
+        {
+            Error($"panel '{panel}' asks about '{indicator}' with {(wasRange ? "ranges (p10, p50, p90)" : "single values")} on earlier rows; one question has one response format.");
+        }
+        _formats.TryAdd((panel!, indicator!), isRange);
+        if (_kinds.TryGetValue((panel!, indicator!), out var known2))
+        {
+            if (known2.Calibration != calibration)
+            {
+                Error($"panel '{panel}' asks about '{indicator}' with calibration {(known2.Calibration ? 1 : 0)} on earlier rows; one question is a calibration question or not.");
+            }
+            else if (calibration && known2.Period != period!.Value)
+            {
+                Error($"panel '{panel}' has calibration question '{indicator}' about {known2.Period} on earlier rows; a calibration question asks about one period.");
+            }
+        }
+        _kinds.TryAdd((panel!, indicator!), (calibration, period!.Value));
+        if (_seen is not null && !_seen.Add((panel!, indicator!, period!.Value, expert!, round)))
+        {
+            Error($"expert '{expert}' has another forecast of {indicator} {period} in round {round} of panel '{panel}'.");
+        }
+        if (!_panelPeriods.TryGetValue(panel!, out var periods))
+        {
+            _panelPeriods[panel!] = periods = [];
+        }
+        if (periods.Add(period.Value) && periods.Count > 60)
+        {
+            Error($"panel '{panel}' has more than 60 target periods.");
+        }
+        if (report.Count > before)
+        {
+            return null;
+        }
+        return new PastForecastRow(r.Row, panel!, start!.Value, closed ?? _panelStarts[panel!].Closed, indicator!, unit!, period.Value, expert!, round,
+            value, isRange ? p10 : null, isRange ? p50 : null, isRange ? p90 : null, calibration);
     }
 }

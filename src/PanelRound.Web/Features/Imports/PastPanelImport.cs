@@ -48,36 +48,51 @@ public sealed record PastPanelImportResult(
 /// </remarks>
 public sealed class PastPanelImport(PanelRoundDbContext db, TimeProvider clock, ConsensusPublisher publisher, IOptions<ScoringOptions> options)
 {
+    /// <summary>Imports the two files, or reports why not; nothing is stored unless everything is.</summary>
+    /// <remarks>
+    /// Implementation note: the forecasts file is read twice, a row at a time. The first reading
+    /// checks every row and keeps only what describes the panels (their questions, experts and
+    /// rounds); the second streams the forecasts into the database (binary COPY on PostgreSQL). A
+    /// forecast given twice is found in the database, round by round, as each round's feedback is
+    /// frozen; then everything is rolled back and a third reading names the rows. So memory grows
+    /// with the number of panels and experts and with the largest round, not with the file.
+    /// </remarks>
+    /// <param name="forecasts">The forecasts file; read again from its position at the call (copied to a temporary file first if it cannot seek).</param>
+    /// <param name="observations">The observations file, if any: one row per indicator and period, read whole.</param>
+    /// <param name="actor">Who imports, for the audit log.</param>
     public async Task<Result<PastPanelImportResult>> ImportAsync(Stream forecasts, Stream? observations, string actor)
     {
         var today = DateOnly.FromDateTime(clock.GetUtcNow().UtcDateTime);
-        var parsed = PastPanelCsv.Parse(forecasts, observations, today, options.Value.ImportPublicationLagDays);
-        if (!parsed.IsOk)
+        var lagDays = options.Value.ImportPublicationLagDays;
+        await using var copy = forecasts.CanSeek ? null : await TemporaryCopyAsync(forecasts);
+        var file = copy ?? forecasts;
+        var origin = file.Position;
+        var read = PastPanelCsv.Read(file, observations, today, lagDays, findDuplicates: false);
+        if (!read.IsOk)
         {
-            return parsed.As<PastPanelImportResult>();
+            return read.As<PastPanelImportResult>();
         }
-        var (forecastRows, observationRows) = (parsed.Value!.Forecasts, parsed.Value.Observations);
+        var (summary, observationRows) = (read.Value!.Forecasts, read.Value.Observations);
 
         // Checks against the database: panels not imported twice, units agree with known indicators.
         var report = new RowErrorReport();
-        var panelKeys = forecastRows.Select(r => r.Panel).Distinct(StringComparer.Ordinal).ToList();
+        var panelKeys = summary.Panels.Select(p => p.Key).ToList();
         var existingPanels = (await db.Panels.AsNoTracking().Where(p => p.ExternalKey != null && panelKeys.Contains(p.ExternalKey))
             .Select(p => p.ExternalKey!).ToListAsync()).ToHashSet(StringComparer.Ordinal);
-        foreach (var first in forecastRows.GroupBy(r => r.Panel).Select(g => g.First()).Where(r => existingPanels.Contains(r.Panel)))
+        foreach (var first in summary.Panels.Where(p => existingPanels.Contains(p.Key)))
         {
-            report.Add(CsvUploads.RowKey("forecasts", first.Row), $"Row {first.Row} (line {first.Row + 1}): panel '{first.Panel}' exists already (imported before?); nothing was imported.");
+            report.Add(CsvUploads.RowKey("forecasts", first.FirstRow), $"Row {first.FirstRow} (line {first.FirstRow + 1}): panel '{first.Key}' exists already (imported before?); nothing was imported.");
         }
-        var indicatorKeys = forecastRows.Select(r => r.Indicator).Concat(observationRows.Select(o => o.Indicator)).Distinct(StringComparer.Ordinal).ToList();
+        var indicatorKeys = summary.Indicators.Select(i => i.Indicator).Concat(observationRows.Select(o => o.Indicator)).Distinct(StringComparer.Ordinal).ToList();
         var indicators = await db.Indicators.Where(i => indicatorKeys.Contains(i.Key)).ToDictionaryAsync(i => i.Key, StringComparer.Ordinal);
-        foreach (var r in forecastRows.GroupBy(r => r.Indicator).Select(g => g.First()))
+        foreach (var (indicator, unit, row) in summary.Indicators)
         {
-            if (indicators.TryGetValue(r.Indicator, out var known) && !string.Equals(known.UnitLabel, r.Unit, StringComparison.Ordinal))
+            if (indicators.TryGetValue(indicator, out var known) && !string.Equals(known.UnitLabel, unit, StringComparison.Ordinal))
             {
-                report.Add(CsvUploads.RowKey("forecasts", r.Row), $"Row {r.Row} (line {r.Row + 1}): indicator '{r.Indicator}' is in {known.UnitLabel}, not {r.Unit}.");
+                report.Add(CsvUploads.RowKey("forecasts", row), $"Row {row} (line {row + 1}): indicator '{indicator}' is in {known.UnitLabel}, not {unit}.");
             }
         }
-        var forecastIndicators = forecastRows.Select(r => r.Indicator).ToHashSet(StringComparer.Ordinal);
-        foreach (var o in observationRows.Where(o => !indicators.ContainsKey(o.Indicator) && !forecastIndicators.Contains(o.Indicator)))
+        foreach (var o in observationRows.Where(o => !indicators.ContainsKey(o.Indicator) && !summary.HasIndicator(o.Indicator)))
         {
             report.Add(CsvUploads.RowKey("observations", o.Row), $"Row {o.Row} (line {o.Row + 1}): indicator '{o.Indicator}' is neither in the forecasts file nor among the indicators, so its unit is unknown.");
         }
@@ -88,7 +103,12 @@ public sealed class PastPanelImport(PanelRoundDbContext db, TimeProvider clock, 
 
         try
         {
-            return await SaveAsync(forecastRows, observationRows, indicators, actor);
+            file.Position = origin;
+            var saved = await SaveAsync(summary, file, observationRows, indicators, actor);
+            if (saved is not null)
+            {
+                return saved;
+            }
         }
         catch (DbUpdateException)
         {
@@ -97,61 +117,79 @@ public sealed class PastPanelImport(PanelRoundDbContext db, TimeProvider clock, 
             return Result<PastPanelImportResult>.Conflict(
                 "Another import of the same panels (or of the same new indicators or experts) finished meanwhile; nothing was imported. Reload and check before importing again.");
         }
+
+        // A forecast given twice: read the file once more, keeping every key, to name the rows.
+        file.Position = origin;
+        var again = PastPanelCsv.Read(file, null, today, lagDays, findDuplicates: true);
+        return again.IsOk
+            ? throw new InvalidOperationException("The database holds a forecast twice that the forecasts file does not.")
+            : again.As<PastPanelImportResult>();
     }
 
-    private async Task<Result<PastPanelImportResult>> SaveAsync(
-        IReadOnlyList<PastForecastRow> forecastRows, IReadOnlyList<PastObservationRow> observationRows, Dictionary<string, Indicator> indicators, string actor)
+    /// <summary>A seekable copy of a stream that cannot seek, in a temporary file deleted when disposed.</summary>
+    private static async Task<Stream> TemporaryCopyAsync(Stream stream)
+    {
+        var copy = new FileStream(Path.GetTempFileName(), FileMode.Create, FileAccess.ReadWrite, FileShare.None, 64 * 1024, FileOptions.DeleteOnClose);
+        await stream.CopyToAsync(copy);
+        copy.Position = 0;
+        return copy;
+    }
+
+    /// <summary>Stores everything in one transaction; null, with nothing stored, when a forecast is given twice.</summary>
+    private async Task<Result<PastPanelImportResult>?> SaveAsync(
+        PastForecastSummary summary, Stream forecasts, IReadOnlyList<PastObservationRow> observationRows, Dictionary<string, Indicator> indicators, string actor)
     {
         var now = clock.GetUtcNow().UtcDateTime;
         await using var tx = await db.Database.BeginTransactionAsync();
+        // Any error undoes the whole import, so a savepoint around each save would only cost round trips.
+        db.Database.AutoSavepointsEnabled = false;
 
         // Indicators and experts first, for their ids.
         var decimalsOf = observationRows.GroupBy(o => o.Indicator).ToDictionary(g => g.Key, g => g.Max(o => o.Decimals), StringComparer.Ordinal);
         var indicatorsCreated = 0;
-        foreach (var r in forecastRows.GroupBy(r => r.Indicator).Select(g => g.First()).Where(r => !indicators.ContainsKey(r.Indicator)))
+        foreach (var (key, unit, _) in summary.Indicators.Where(i => !indicators.ContainsKey(i.Indicator)))
         {
             var indicator = new Indicator
             {
-                Key = r.Indicator, Name = r.Indicator, UnitLabel = r.Unit, Decimals = decimalsOf.GetValueOrDefault(r.Indicator, 2), CreatedAt = now,
+                Key = key, Name = key, UnitLabel = unit, Decimals = decimalsOf.GetValueOrDefault(key, 2), CreatedAt = now,
                 Description = "Created by an import of past panels.",
             };
             db.Indicators.Add(indicator);
-            indicators[r.Indicator] = indicator;
+            indicators[key] = indicator;
             indicatorsCreated++;
         }
-        var (experts, expertsCreated) = await MatchExpertsAsync(forecastRows.Select(r => r.Expert).Distinct(StringComparer.Ordinal).ToList(), now);
+        var (experts, expertsCreated) = await MatchExpertsAsync(summary.Experts, now);
         await db.SaveChangesAsync();
 
         // Panels with their questions, memberships and rounds.
-        var codes = await PanelCodes.NewAsync(db, forecastRows.Select(r => (r.Panel, r.Expert)).Distinct().Count());
+        var codes = await PanelCodes.NewAsync(db, summary.Panels.Sum(p => p.Experts.Count));
         var nextCode = 0;
-        var built = new List<(Panel Panel, List<PastForecastRow> Rows)>();
-        foreach (var group in forecastRows.GroupBy(r => r.Panel, StringComparer.Ordinal))
+        var built = new List<(Panel Panel, PastPanelPlan Plan)>();
+        foreach (var plan in summary.Panels)
         {
-            var rows = group.ToList();
-            var start = rows[0].PanelStart;
-            var closed = (rows[0].PanelClosed ?? start).ToDateTime(TimeOnly.MinValue, DateTimeKind.Utc);
+            var closed = (plan.Closed ?? plan.Start).ToDateTime(TimeOnly.MinValue, DateTimeKind.Utc);
             var panel = new Panel
             {
-                Title = group.Key, Brief = "Imported from the firm's records of past panels.", StartsOn = start,
-                TargetPeriods = string.Join(",", (rows.Any(r => !r.Calibration) ? rows.Where(r => !r.Calibration) : rows).Select(r => r.Period).Distinct().Order()),
+                Title = plan.Key, Brief = "Imported from the firm's records of past panels.", StartsOn = plan.Start,
+                TargetPeriods = string.Join(",", plan.TargetPeriods),
                 State = PanelState.Concluded,
-                CreatedAt = now, CreatedBy = actor, ConcludedAt = closed, ExternalKey = group.Key, Version = Guid.NewGuid(),
+                CreatedAt = now, CreatedBy = actor, ConcludedAt = closed, ExternalKey = plan.Key, Version = Guid.NewGuid(),
             };
             var order = 0;
-            foreach (var q in rows.GroupBy(r => r.Indicator, StringComparer.Ordinal))
+            foreach (var q in plan.Questions)
             {
+                var indicator = indicators[q.Indicator];
                 panel.Questions.Add(new Question
                 {
-                    IndicatorId = indicators[q.Key].Id, Order = ++order, Label = indicators[q.Key].Name,
-                    Format = q.First().IsRange ? ResponseFormat.Range : ResponseFormat.Point,
-                    TargetPeriods = string.Join(",", q.Select(r => r.Period).Distinct().Order()),
-                    IsCalibration = q.First().Calibration,
-                    TrueValue = q.First().Calibration ? await TruthOfAsync(observationRows, indicators[q.Key], q.First().Period) : null,
-                    TrueValueRecordedAt = q.First().Calibration ? now : null,
+                    IndicatorId = indicator.Id, Order = ++order, Label = indicator.Name,
+                    Format = q.IsRange ? ResponseFormat.Range : ResponseFormat.Point,
+                    TargetPeriods = string.Join(",", q.Periods),
+                    IsCalibration = q.Calibration,
+                    TrueValue = q.Calibration ? await TruthOfAsync(observationRows, indicator, q.FirstPeriod) : null,
+                    TrueValueRecordedAt = q.Calibration ? now : null,
                 });
             }
-            foreach (var expert in rows.Select(r => r.Expert).Distinct(StringComparer.Ordinal))
+            foreach (var expert in plan.Experts)
             {
                 panel.Memberships.Add(new PanelMembership
                 {
@@ -159,45 +197,55 @@ public sealed class PastPanelImport(PanelRoundDbContext db, TimeProvider clock, 
                     TokenIssuedAt = now, State = MembershipState.Invited, CreatedAt = now,
                 });
             }
-            foreach (var number in rows.Select(r => r.Round).Distinct().Order())
+            foreach (var number in plan.Rounds)
             {
                 panel.Rounds.Add(new Round
                 {
-                    Number = number, State = RoundState.Closed, OpensAt = start.ToDateTime(TimeOnly.MinValue, DateTimeKind.Utc),
+                    Number = number, State = RoundState.Closed, OpensAt = plan.Start.ToDateTime(TimeOnly.MinValue, DateTimeKind.Utc),
                     ClosesAt = closed, ClosedAt = closed, ClosedBy = actor, Version = Guid.NewGuid(),
                 });
             }
             db.Panels.Add(panel);
-            built.Add((panel, rows));
+            built.Add((panel, plan));
         }
         await db.SaveChangesAsync();
 
-        // Estimates and the frozen feedback of every round.
-        var estimates = 0;
-        foreach (var (panel, rows) in built)
+        // The forecasts, read again and streamed into the database.
+        var ids = built.ToDictionary(b => b.Plan.Key, b => (
+            Questions: b.Panel.Questions.ToDictionary(q => b.Plan.Questions[q.Order - 1].Indicator, q => q.Id, StringComparer.Ordinal),
+            Members: b.Panel.Memberships.ToDictionary(m => m.ExpertId, m => m.Id),
+            Rounds: b.Panel.Rounds.ToDictionary(r => r.Number, r => (r.Id, ClosedAt: r.ClosedAt!.Value))), StringComparer.Ordinal);
+        var estimates = await EstimateRows.InsertAsync(db, PastPanelCsv.ForecastRows(forecasts).Select(r =>
         {
-            var questionOf = panel.Questions.ToDictionary(q => indicators.Single(i => i.Value.Id == q.IndicatorId).Key, StringComparer.Ordinal);
-            var membershipOf = panel.Memberships.ToDictionary(m => m.ExpertId);
-            foreach (var round in panel.Rounds)
+            var panel = ids[r.Panel];
+            var round = panel.Rounds[r.Round];
+            return new EstimateRow(round.Id, panel.Members[experts[r.Expert].Id], panel.Questions[r.Indicator], r.Period.ToString(),
+                r.Value, r.P10, r.P50, r.P90, round.ClosedAt);
+        }));
+
+        // The frozen feedback of every round, from its answers as stored; a forecast given twice undoes the import.
+        foreach (var (panel, _) in built)
+        {
+            foreach (var round in panel.Rounds.OrderBy(r => r.Number))
             {
-                var answers = new List<CountedAnswer>();
-                foreach (var r in rows.Where(r => r.Round == round.Number))
+                var answers = await db.Estimates.AsNoTracking().Where(e => e.RoundId == round.Id).OrderBy(e => e.Id)
+                    .Select(e => new CountedAnswer(e.MembershipId, e.QuestionId, e.Period, e.Value, e.P10, e.P50, e.P90, e.Rationale)).ToListAsync();
+                var seen = new HashSet<(int, int, string)>();
+                if (answers.Any(a => !seen.Add((a.MembershipId, a.QuestionId, a.Period))))
                 {
-                    var question = questionOf[r.Indicator];
-                    var membership = membershipOf[experts[r.Expert].Id];
-                    var estimate = new Estimate
-                    {
-                        RoundId = round.Id, MembershipId = membership.Id, QuestionId = question.Id, Period = r.Period.ToString(),
-                        Value = r.Value, P10 = r.P10, P50 = r.P50, P90 = r.P90, CreatedAt = round.ClosedAt!.Value,
-                    };
-                    db.Estimates.Add(estimate);
-                    answers.Add(CountedAnswer.From(estimate));
-                    estimates++;
+                    await tx.RollbackAsync();
+                    db.ChangeTracker.Clear();
+                    return null;
                 }
                 FeedbackFreezer.Freeze(db, round.Id, panel.Questions, answers, panel.Settings);
             }
         }
         await db.SaveChangesAsync();
+        // Saved feedback is not needed again.
+        foreach (var entry in db.ChangeTracker.Entries<FrozenFeedback>().ToList())
+        {
+            entry.State = EntityState.Detached;
+        }
 
         // The consensus of each panel's last round, through the app's own consensus code.
         foreach (var (panel, _) in built)
