@@ -23,8 +23,9 @@ public class Round
     public string? ClosedBy { get; set; }
 
     /// <summary>
-    /// Optimistic concurrency token: every submission and the close change it, so a submission
-    /// can never be acknowledged into a round whose close has already read its answers.
+    /// Concurrency token: the close changes it. Submissions lock the row before they save (shared
+    /// on PostgreSQL, a no-op update on SQLite), so a submission can never be acknowledged into a
+    /// round whose close has already read its answers.
     /// </summary>
     public Guid Version { get; set; }
 

@@ -1,7 +1,5 @@
 using System.Net;
-using System.Net.Http.Headers;
 using System.Net.Http.Json;
-using System.Text;
 using System.Text.Json.Nodes;
 using Microsoft.EntityFrameworkCore;
 using Microsoft.Extensions.DependencyInjection;
@@ -219,17 +217,6 @@ public abstract class CalibrationQuestionTests(IDatabaseFixture fixture) : Provi
         Assert.All(form.Where(q => p.CalibrationQuestions.Contains((int)q!["id"]!)), q => Assert.Equal(ordinary, q!.AsObject().Select(kv => kv.Key).Order().ToList()));
     }
 
-    private static async Task<HttpResponseMessage> ImportAsync(HttpClient staff, string forecasts, string observations)
-    {
-        using var form = new MultipartFormDataContent();
-        foreach (var (name, text) in new[] { ("forecasts", forecasts), ("observations", observations) })
-        {
-            var part = new ByteArrayContent(Encoding.UTF8.GetBytes(text));
-            part.Headers.ContentType = new MediaTypeHeaderValue("text/csv");
-            form.Add(part, name, name + ".csv");
-        }
-        return await staff.PostAsync("/api/imports/past-panels", form);
-    }
 
     [SkippableFact]
     public async Task PastPanelImport_CalibrationColumn_MarksTheQuestionTakesItsTruthAndKeepsItOutOfTheConsensus()
@@ -243,8 +230,8 @@ public abstract class CalibrationQuestionTests(IDatabaseFixture fixture) : Provi
             + "old-1,2023-11-01,2023-12-01,vol-x,EUR m,2023Q3,ex-a,1,,90,100,110,1\n"
             + "old-1,2023-11-01,2023-12-01,vol-x,EUR m,2023Q3,ex-b,1,,120,125,130,1\n";
         var observations = "indicator,period,value,observed_on\nvol-x,2023Q3,104,2023-12-15\nprice-x,2025,3200,2026-02-01\n";
-        var r = await ImportAsync(staff, forecasts, observations);
-        Assert.True(r.IsSuccessStatusCode, await r.Content.ReadAsStringAsync());
+        var r = await staff.PostCsvFiles("/api/imports/past-panels", ("forecasts", forecasts), ("observations", observations));
+        Assert.True((int)r.Status is >= 200 and < 300, r.Text);
 
         var panelId = await app.WithDbAsync(db => db.Panels.Where(x => x.ExternalKey == "old-1").Select(x => x.Id).SingleAsync());
         var panel = await staff.GetOk($"/api/panels/{panelId}");
@@ -271,8 +258,9 @@ public abstract class CalibrationQuestionTests(IDatabaseFixture fixture) : Provi
         const string Header = "panel,panel_start,indicator,unit,target_period,expert,round,value,p10,p50,p90,calibration\n";
         foreach (var row in new[] { "old-2,2023-11-01,vol-y,EUR m,2023Q3,ex-a,1,,90,100,110,yes\n", "old-2,2023-11-01,vol-y,EUR m,2023Q3,ex-a,1,100,,,,1\n" })
         {
-            var r = await ImportAsync(staff, Header + row, "indicator,period,value\n");
-            var problem = await ProblemOf(r);
+            var r = await staff.PostCsvFiles("/api/imports/past-panels", ("forecasts", Header + row), ("observations", "indicator,period,value\n"));
+            Assert.Equal(HttpStatusCode.BadRequest, r.Status);
+            var problem = r.Body!;
             Assert.NotNull(problem["errors"]!["forecasts row 1"]);
         }
         Assert.Equal(0, await app.WithDbAsync(db => db.Panels.CountAsync()));

@@ -1,6 +1,5 @@
 using System.Globalization;
 using System.Net;
-using System.Net.Http.Headers;
 using System.Text;
 using System.Text.RegularExpressions;
 using DocumentFormat.OpenXml.Packaging;
@@ -152,8 +151,8 @@ public abstract partial class CalibrationReportTests(IDatabaseFixture fixture) :
     {
         var app = await StartAsync();
         var staff = await app.StaffClientAsync();
-        var r = await ImportAsync(staff, History.Forecasts, History.Observations);
-        Assert.True(r.IsSuccessStatusCode, await r.Content.ReadAsStringAsync());
+        var r = await staff.PostCsvFiles("/api/imports/past-panels", ("forecasts", History.Forecasts), ("observations", History.Observations));
+        Assert.True((int)r.Status is >= 200 and < 300, r.Text);
         var reviewer = await StaffPages.SignedInClientAsync(app, "Reviewer");
 
         // The calibration indicators have observations at the asked periods: outcomes the long-horizon record could score, and must not.
@@ -187,8 +186,8 @@ public abstract partial class CalibrationReportTests(IDatabaseFixture fixture) :
         var reviewer = await StaffPages.SignedInClientAsync(app, "Reviewer");
         Assert.Contains("No calibration question with a true value yet.", await reviewer.GetStringAsync("/Staff/Scorecard"), StringComparison.Ordinal);
 
-        var r = await ImportAsync(staff, History.Forecasts, History.Observations);
-        Assert.True(r.IsSuccessStatusCode, await r.Content.ReadAsStringAsync());
+        var r = await staff.PostCsvFiles("/api/imports/past-panels", ("forecasts", History.Forecasts), ("observations", History.Observations));
+        Assert.True((int)r.Status is >= 200 and < 300, r.Text);
         var html = WebUtility.HtmlDecode(await reviewer.GetStringAsync("/Staff/Scorecard"));
         var section = html[html.IndexOf("id=\"early-records\"", StringComparison.Ordinal)..];
         var card = await reviewer.GetAs<ScorecardApi.ScorecardDto>("/api/scorecard");
@@ -323,17 +322,6 @@ public abstract partial class CalibrationReportTests(IDatabaseFixture fixture) :
         }
     }
 
-    private static async Task<HttpResponseMessage> ImportAsync(HttpClient staff, string forecasts, string observations)
-    {
-        using var form = new MultipartFormDataContent();
-        foreach (var (name, text) in new[] { ("forecasts", forecasts), ("observations", observations) })
-        {
-            var part = new ByteArrayContent(Encoding.UTF8.GetBytes(text));
-            part.Headers.ContentType = new MediaTypeHeaderValue("text/csv");
-            form.Add(part, name, name + ".csv");
-        }
-        return await staff.PostAsync("/api/imports/past-panels", form);
-    }
 
     /// <summary>The rows of a CSV export (RFC 4180 quoting), by column name.</summary>
     private static List<Dictionary<string, string>> ReadCsv(byte[] bytes)

@@ -1,8 +1,6 @@
 using System.Globalization;
 using System.Net;
-using System.Net.Http.Headers;
 using System.Text;
-using System.Text.Json.Nodes;
 using Microsoft.EntityFrameworkCore;
 using Microsoft.Extensions.DependencyInjection;
 using Microsoft.VisualBasic.FileIO;
@@ -81,19 +79,6 @@ public abstract class PastPanelImportTests(IDatabaseFixture fixture) : ProviderT
 
     private static double? Num(Dictionary<string, string> row, string column) => row[column].Length > 0 ? double.Parse(row[column], Inv) : null;
 
-    private static async Task<(HttpStatusCode Status, JsonNode? Body, string Text)> PostFiles(HttpClient client, params (string Name, string Content)[] files)
-    {
-        using var form = new MultipartFormDataContent();
-        foreach (var (name, content) in files)
-        {
-            var part = new ByteArrayContent(Encoding.UTF8.GetBytes(content));
-            part.Headers.ContentType = new MediaTypeHeaderValue("text/csv");
-            form.Add(part, name, name + ".csv");
-        }
-        var r = await client.PostAsync("/api/imports/past-panels", form);
-        var text = await r.Content.ReadAsStringAsync();
-        return (r.StatusCode, text.Length == 0 ? null : JsonNode.Parse(text), text);
-    }
 
     private static Task<int[]> CountsAsync(TestApp app) => app.WithDbAsync(async db => new[]
     {
@@ -109,7 +94,7 @@ public abstract class PastPanelImportTests(IDatabaseFixture fixture) : ProviderT
         var staff = await app.StaffClientAsync();
         var forecasts = GeneratedForecasts();
 
-        var (status, body, text) = await PostFiles(staff, ("forecasts", forecasts), ("observations", Observations));
+        var (status, body, text) = await staff.PostCsvFiles("/api/imports/past-panels", ("forecasts", forecasts), ("observations", Observations));
 
         Assert.True(status == HttpStatusCode.OK, text);
         var rows = ReadCsv(forecasts);
@@ -178,7 +163,7 @@ public abstract class PastPanelImportTests(IDatabaseFixture fixture) : ProviderT
             expected = $"Row 20001 (line 20002): expert '{first[6]}' has another forecast of {first[3]} {first[5]} in round {first[7]} of panel '{first[0]}'.";
         }
 
-        var (status, body, text) = await PostFiles(staff, ("forecasts", string.Join('\n', lines) + "\n"), ("observations", Observations));
+        var (status, body, text) = await staff.PostCsvFiles("/api/imports/past-panels", ("forecasts", string.Join('\n', lines) + "\n"), ("observations", Observations));
 
         Assert.True(status == HttpStatusCode.BadRequest, text);
         var errors = body!["errors"]!.AsObject();

@@ -12,6 +12,24 @@ public static class Api
     /// <summary>The API's JSON conventions: camelCase names, enums as their names.</summary>
     public static readonly JsonSerializerOptions Json = new(JsonSerializerDefaults.Web) { Converters = { new JsonStringEnumConverter() } };
 
+    /// <summary>
+    /// POST of CSV files as one multipart form (field <c>name</c>, file <c>name.csv</c>, text/csv), as the
+    /// import endpoints take them; the answer as status, JSON body (null when empty) and text.
+    /// </summary>
+    public static async Task<(HttpStatusCode Status, JsonNode? Body, string Text)> PostCsvFiles(this HttpClient client, string url, params (string Name, string Content)[] files)
+    {
+        using var form = new MultipartFormDataContent();
+        foreach (var (name, content) in files)
+        {
+            var part = new ByteArrayContent(System.Text.Encoding.UTF8.GetBytes(content));
+            part.Headers.ContentType = new System.Net.Http.Headers.MediaTypeHeaderValue("text/csv");
+            form.Add(part, name, name + ".csv");
+        }
+        using var r = await client.PostAsync(url, form);
+        var text = await r.Content.ReadAsStringAsync();
+        return (r.StatusCode, text.Length == 0 ? null : JsonNode.Parse(text), text);
+    }
+
     /// <summary>GET that must answer 200, read as the API's own response type.</summary>
     public static async Task<T> GetAs<T>(this HttpClient client, string url) => Read<T>(await client.GetTextOk(url), url);
 

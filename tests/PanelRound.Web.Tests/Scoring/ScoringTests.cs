@@ -1,7 +1,6 @@
 using System.Diagnostics;
 using System.Globalization;
 using System.Net;
-using System.Net.Http.Headers;
 using System.Text;
 using System.Text.Json.Nodes;
 using Microsoft.EntityFrameworkCore;
@@ -71,19 +70,6 @@ public abstract class ScoringTests(IDatabaseFixture fixture, ITestOutputHelper o
     private static Dictionary<string, JsonNode> ExpertsOf(JsonNode scorecard) =>
         scorecard["experts"]!.AsArray().ToDictionary(e => (string)e!["expert"]!, e => e!);
 
-    private static async Task<(HttpStatusCode Status, JsonNode? Body, string Text)> PostFiles(HttpClient client, string url, params (string Name, string Content)[] files)
-    {
-        using var form = new MultipartFormDataContent();
-        foreach (var (name, content) in files)
-        {
-            var part = new ByteArrayContent(Encoding.UTF8.GetBytes(content));
-            part.Headers.ContentType = new MediaTypeHeaderValue("text/csv");
-            form.Add(part, name, name + ".csv");
-        }
-        var r = await client.PostAsync(url, form);
-        var text = await r.Content.ReadAsStringAsync();
-        return (r.StatusCode, text.Length == 0 ? null : JsonNode.Parse(text), text);
-    }
 
     // ---------- The demo ----------
 
@@ -226,7 +212,7 @@ public abstract class ScoringTests(IDatabaseFixture fixture, ITestOutputHelper o
         Assert.Equal(1000, forecasts.Count(c => c == '\n') - 1);
 
         var watch = Stopwatch.StartNew();
-        var (status, body, text) = await PostFiles(facilitator, "/api/imports/past-panels", ("forecasts", forecasts), ("observations", observations));
+        var (status, body, text) = await facilitator.PostCsvFiles("/api/imports/past-panels", ("forecasts", forecasts), ("observations", observations));
         var imported = watch.Elapsed;
         Assert.True(status == HttpStatusCode.OK, text);
         var scorecard = await facilitator.GetOk("/api/scorecard");
@@ -258,7 +244,7 @@ public abstract class ScoringTests(IDatabaseFixture fixture, ITestOutputHelper o
         Assert.Equal(20, (int)scorecard["naive"]!["n"]!);
 
         // Importing the same panels again is refused, and changes nothing.
-        var again = await PostFiles(facilitator, "/api/imports/past-panels", ("forecasts", forecasts), ("observations", observations));
+        var again = await facilitator.PostCsvFiles("/api/imports/past-panels", ("forecasts", forecasts), ("observations", observations));
         Assert.Equal(HttpStatusCode.BadRequest, again.Status);
         Assert.Equal(1000, await app.WithDbAsync(db => db.Estimates.CountAsync()));
     }
@@ -275,7 +261,7 @@ public abstract class ScoringTests(IDatabaseFixture fixture, ITestOutputHelper o
         var obsLines = observations.Split('\n').ToList();
         obsLines[3] = "price-x,2011Q9,1,bad period";
 
-        var (status, body, text) = await PostFiles(facilitator, "/api/imports/past-panels", ("forecasts", string.Join('\n', lines)), ("observations", string.Join('\n', obsLines)));
+        var (status, body, text) = await facilitator.PostCsvFiles("/api/imports/past-panels", ("forecasts", string.Join('\n', lines)), ("observations", string.Join('\n', obsLines)));
         Assert.True(status == HttpStatusCode.BadRequest, text);
         var errors = body!["errors"]!.AsObject();
         Assert.True(errors.ContainsKey("forecasts row 12"), text);
@@ -298,7 +284,7 @@ public abstract class ScoringTests(IDatabaseFixture fixture, ITestOutputHelper o
         var facilitator = await app.StaffClientAsync();
         var reviewer = await app.StaffClientAsync(Roles.Reviewer);
         var (forecasts, observations) = GeneratedHistory();
-        var (status, _, text) = await PostFiles(facilitator, "/api/imports/past-panels", ("forecasts", forecasts), ("observations", observations));
+        var (status, _, text) = await facilitator.PostCsvFiles("/api/imports/past-panels", ("forecasts", forecasts), ("observations", observations));
         Assert.True(status == HttpStatusCode.OK, text);
         var before = ExpertsOf(await reviewer.GetOk("/api/scorecard?indicator=price-x"));
 
@@ -328,7 +314,7 @@ public abstract class ScoringTests(IDatabaseFixture fixture, ITestOutputHelper o
         Assert.StartsWith("api-key:", entry.Actor, StringComparison.Ordinal);
 
         // A bad CSV row of outcomes rejects the whole file.
-        var (badStatus, badBody, badText) = await PostFiles(reviewer, "/api/outcomes/csv", ("file", "indicator,period,value\nprice-x,2025,5000\nnope,2025,1\n"));
+        var (badStatus, badBody, badText) = await reviewer.PostCsvFiles("/api/outcomes/csv", ("file", "indicator,period,value\nprice-x,2025,5000\nnope,2025,1\n"));
         Assert.True(badStatus == HttpStatusCode.BadRequest, badText);
         Assert.True(badBody!["errors"]!.AsObject().ContainsKey("row 2"), badText);
         Assert.Equal(0, await app.WithDbAsync(db => db.Observations.CountAsync(o => o.Period == "2025")));
@@ -367,7 +353,7 @@ public abstract class ScoringTests(IDatabaseFixture fixture, ITestOutputHelper o
         var app = await StartAsync();
         var staff = await app.StaffClientAsync();
         var (forecasts, observations) = TrackRecordHistory();
-        var (status, _, text) = await PostFiles(staff, "/api/imports/past-panels", ("forecasts", forecasts), ("observations", observations));
+        var (status, _, text) = await staff.PostCsvFiles("/api/imports/past-panels", ("forecasts", forecasts), ("observations", observations));
         Assert.True(status == HttpStatusCode.OK, text);
 
         // A live panel weighted by track record, answered by the five experts: the accurate ones answer high.
@@ -638,7 +624,7 @@ public abstract class ScoringTests(IDatabaseFixture fixture, ITestOutputHelper o
         await ExpectField(reviewer, "/api/outcomes", new { indicator = "idx-a", period = "2021", value = 5.0, observedOn = today.AddDays(1).ToString("yyyy-MM-dd", Inv) }, "observedOn");
         await ExpectField(reviewer, "/api/outcomes", new { indicator = "idx-a", period = thisYear, value = 5.0 }, "period");
         await ExpectField(reviewer, "/api/outcomes", new { indicator = "idx-a", period = "2021", value = 2e12 }, "value");
-        var (csvStatus, csvBody, csvText) = await PostFiles(reviewer, "/api/outcomes/csv", ("file", "indicator,period,value,observed_on\nidx-a,2020,5,2021-01-10\nidx-a,2021,5,2021-12-30\n"));
+        var (csvStatus, csvBody, csvText) = await reviewer.PostCsvFiles("/api/outcomes/csv", ("file", "indicator,period,value,observed_on\nidx-a,2020,5,2021-01-10\nidx-a,2021,5,2021-12-30\n"));
         Assert.True(csvStatus == HttpStatusCode.BadRequest, csvText);
         Assert.True(csvBody!["errors"]!.AsObject().ContainsKey("row 2"), csvText);
 
@@ -649,7 +635,7 @@ public abstract class ScoringTests(IDatabaseFixture fixture, ITestOutputHelper o
         // Imports: row-level errors in both files.
         var forecasts = "panel,panel_start,indicator,unit,target_period,expert,round,value\nv-1,2019-03-01,idx-a,points,2020,A,1,5000000000000\nv-1,2019-03-01,idx-a,points,2020,B,1,101\n";
         var observations = "indicator,period,value,observed_on\nidx-a,2018,100,2019-02-15\nidx-a,2020,103,2020-11-30\nidx-a,2017,1e13,2018-02-15\n";
-        var (status, body, text) = await PostFiles(staff, "/api/imports/past-panels", ("forecasts", forecasts), ("observations", observations));
+        var (status, body, text) = await staff.PostCsvFiles("/api/imports/past-panels", ("forecasts", forecasts), ("observations", observations));
         Assert.True(status == HttpStatusCode.BadRequest, text);
         Assert.Equal(["forecasts row 1", "observations row 2", "observations row 3"], body!["errors"]!.AsObject().Select(e => e.Key).Order());
 
@@ -670,7 +656,7 @@ public abstract class ScoringTests(IDatabaseFixture fixture, ITestOutputHelper o
         var staff = await app.StaffClientAsync();
         var reviewer = await app.StaffClientAsync(Roles.Reviewer);
         var (forecasts, observations) = TrackRecordHistory();
-        var (status, _, text) = await PostFiles(staff, "/api/imports/past-panels", ("forecasts", forecasts), ("observations", observations));
+        var (status, _, text) = await staff.PostCsvFiles("/api/imports/past-panels", ("forecasts", forecasts), ("observations", observations));
         Assert.True(status == HttpStatusCode.OK, text);
 
         // Data stored before the magnitude bound existed: an answer and a consensus of 1e200, whose squares overflow.
@@ -721,7 +707,7 @@ public abstract class ScoringTests(IDatabaseFixture fixture, ITestOutputHelper o
         {
             forecasts.Append(Inv, $"panel-1,2019-03-01,2019-04-15,idx-a,points,2020,{expert},1,{series[2020] + off}\n");
         }
-        var (status, _, text) = await PostFiles(staff, "/api/imports/past-panels", ("forecasts", forecasts.ToString()));
+        var (status, _, text) = await staff.PostCsvFiles("/api/imports/past-panels", ("forecasts", forecasts.ToString()));
         Assert.True(status == HttpStatusCode.OK, text);
 
         var scorecard = await reviewer.GetOk("/api/scorecard");
@@ -781,7 +767,7 @@ public abstract class ScoringTests(IDatabaseFixture fixture, ITestOutputHelper o
         var app = await StartAsync();
         var staff = await app.StaffClientAsync();
         var (forecasts, observations, series) = RangeHistory();
-        var (status, _, text) = await PostFiles(staff, "/api/imports/past-panels", ("forecasts", forecasts), ("observations", observations));
+        var (status, _, text) = await staff.PostCsvFiles("/api/imports/past-panels", ("forecasts", forecasts), ("observations", observations));
         Assert.True(status == HttpStatusCode.OK, text);
 
         // Recomputed from the files: scaled |P50 − y| (Point weights) and scaled interval score of [P10, P90] at α = 0.2 (Range weights),
@@ -920,7 +906,7 @@ public abstract class ScoringTests(IDatabaseFixture fixture, ITestOutputHelper o
         var staff = await app.StaffClientAsync();
         var reviewer = await app.StaffClientAsync(Roles.Reviewer);
         var (forecasts, observations) = BacktestHistory();
-        var (status, _, text) = await PostFiles(staff, "/api/imports/past-panels", ("forecasts", forecasts), ("observations", observations));
+        var (status, _, text) = await staff.PostCsvFiles("/api/imports/past-panels", ("forecasts", forecasts), ("observations", observations));
         Assert.True(status == HttpStatusCode.OK, text);
 
         async Task<(JsonNode A, JsonNode B, JsonNode Pooled)> BacktestAsync()
@@ -994,7 +980,7 @@ public abstract class ScoringTests(IDatabaseFixture fixture, ITestOutputHelper o
         {
             o.Append(Inv, $"idx-a,{y},{v}\n");
         }
-        var (status, _, text) = await PostFiles(staff, "/api/imports/past-panels", ("forecasts", f.ToString()), ("observations", o.ToString()));
+        var (status, _, text) = await staff.PostCsvFiles("/api/imports/past-panels", ("forecasts", f.ToString()), ("observations", o.ToString()));
         Assert.True(status == HttpStatusCode.OK, text);
 
         var known = await app.WithDbAsync(db => db.Observations.Where(x => x.Period == "2018").Select(x => x.ObservedOn).SingleAsync());
@@ -1027,7 +1013,7 @@ public abstract class ScoringTests(IDatabaseFixture fixture, ITestOutputHelper o
         for (var attempt = 0; attempt < 3; attempt++)
         {
             var keyed = forecasts.Replace("tr-", $"tr{attempt}-", StringComparison.Ordinal);
-            var results = await Task.WhenAll(Enumerable.Range(0, 2).Select(_ => PostFiles(staff, "/api/imports/past-panels", ("forecasts", keyed), ("observations", observations))));
+            var results = await Task.WhenAll(Enumerable.Range(0, 2).Select(_ => staff.PostCsvFiles("/api/imports/past-panels", ("forecasts", keyed), ("observations", observations))));
             Assert.All(results, r => Assert.True(r.Status is HttpStatusCode.OK or HttpStatusCode.BadRequest or HttpStatusCode.Conflict, $"{(int)r.Status} {r.Text}"));
             Assert.Single(results, r => r.Status == HttpStatusCode.OK);
             var refused = results.Single(r => r.Status != HttpStatusCode.OK);

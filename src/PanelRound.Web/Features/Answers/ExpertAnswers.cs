@@ -185,7 +185,11 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
             // second row): nothing of this call is kept, and the first call's receipt is the answer.
             await tx.RollbackAsync();
             db.ChangeTracker.Clear();
-            return await SubmissionKeys.ReplayAsync(db, m.Id, key.Value) ?? throw new InvalidOperationException("A submission failed to save.");
+            if (await SubmissionKeys.ReplayAsync(db, m.Id, key.Value) is { } first)
+            {
+                return first;
+            }
+            throw;
         }
         return Result<SubmissionReceipt>.Ok(receipt);
     }
