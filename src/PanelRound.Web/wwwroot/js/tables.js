@@ -1,0 +1,1 @@
+// Staff tables: sorting long tables by a column.
