@@ -560,6 +560,14 @@ namespace PanelRound.Migrations.Sqlite.Migrations
                     b.Property<DateTime?>("ConcludedAt")
                         .HasColumnType("TEXT");
 
+                    b.Property<string>("ContactEmail")
+                        .HasMaxLength(256)
+                        .HasColumnType("TEXT");
+
+                    b.Property<string>("ContactName")
+                        .HasMaxLength(200)
+                        .HasColumnType("TEXT");
+
                     b.Property<DateTime>("CreatedAt")
                         .HasColumnType("TEXT");
 
@@ -581,6 +589,13 @@ namespace PanelRound.Migrations.Sqlite.Migrations
                         .IsRequired()
                         .HasMaxLength(500)
                         .HasColumnType("TEXT");
+
+                    b.Property<string>("TimeZone")
+                        .IsRequired()
+                        .ValueGeneratedOnAdd()
+                        .HasMaxLength(64)
+                        .HasColumnType("TEXT")
+                        .HasDefaultValue("UTC");
 
                     b.Property<string>("Title")
                         .IsRequired()

@@ -36,6 +36,9 @@ public static class FieldLengths
     /// <summary>An expert's name, an API key's name, a staff member's display name.</summary>
     public const int Name = 200;
 
+    /// <summary>A time zone's IANA name, e.g. <c>Europe/Lisbon</c>.</summary>
+    public const int TimeZone = 64;
+
     /// <summary>An email address.</summary>
     public const int Email = 256;
 

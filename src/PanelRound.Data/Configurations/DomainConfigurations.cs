@@ -38,6 +38,9 @@ internal sealed class PanelConfiguration : IEntityTypeConfiguration<Panel>
         b.Property(x => x.TargetPeriods).HasMaxLength(FieldLengths.TargetPeriods).IsRequired();
         b.Property(x => x.CreatedBy).HasMaxLength(FieldLengths.Actor);
         b.Property(x => x.ExternalKey).HasMaxLength(FieldLengths.ExternalKey);
+        b.Property(x => x.TimeZone).HasMaxLength(FieldLengths.TimeZone).IsRequired().HasDefaultValue("UTC");
+        b.Property(x => x.ContactName).HasMaxLength(FieldLengths.Name);
+        b.Property(x => x.ContactEmail).HasMaxLength(FieldLengths.Email);
         b.HasIndex(x => x.ExternalKey).IsUnique();
         b.Property(x => x.Version).IsConcurrencyToken();
         b.ComplexProperty(x => x.Settings, s => s.Property(x => x.ExpertBenchmark).HasMaxLength(FieldLengths.BenchmarkKey));

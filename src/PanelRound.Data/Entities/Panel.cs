@@ -26,6 +26,18 @@ public class Panel
 
     public DateTime? ConcludedAt { get; set; }
 
+    /// <summary>
+    /// The facilitator's time zone (an IANA name the server knows, e.g. <c>Europe/Lisbon</c>):
+    /// invitations and reminders give each deadline in UTC and in this zone.
+    /// </summary>
+    public string TimeZone { get; set; } = "UTC";
+
+    /// <summary>Whom experts contact about the panel (a name or team), shown in invitations and on the expert's page.</summary>
+    public string? ContactName { get; set; }
+
+    /// <summary>The contact's email address.</summary>
+    public string? ContactEmail { get; set; }
+
     /// <summary>An external key when the panel was imported from a firm's records.</summary>
     public string? ExternalKey { get; set; }
 
