@@ -66,6 +66,7 @@ public static class PostgresServer
     public static async Task<Throwaway> StartThrowawayAsync(bool fsync, int maxConnections = 200)
     {
         var bin = FindBinDir() ?? throw new InvalidOperationException(UnavailableReason());
+        SweepStale();
         var root = Path.Combine("/tmp", "panelround-pg-" + Guid.NewGuid().ToString("N")[..12]);
         var data = Path.Combine(root, "data");
         Directory.CreateDirectory(root);
@@ -95,6 +96,36 @@ public static class PostgresServer
             }
         }
         return new Throwaway($"Host=127.0.0.1;Port={port};Username=postgres;Database=postgres;Include Error Detail=true", StopAsync);
+    }
+
+    /// <summary>
+    /// Deletes the folders of earlier throwaway servers that no longer run (a test host killed before its exit
+    /// handler stopped the server leaves its folder behind; hundreds of them fill the disk). A folder is stale when
+    /// its server's process (postmaster.pid) is gone and it is more than ten minutes old (one being set up is younger).
+    /// </summary>
+    private static void SweepStale()
+    {
+        foreach (var dir in Directory.EnumerateDirectories("/tmp", "panelround-pg-*"))
+        {
+            try
+            {
+                var pidFile = Path.Combine(dir, "data", "postmaster.pid");
+                var running = File.Exists(pidFile)
+                    && int.TryParse(File.ReadLines(pidFile).FirstOrDefault(), out var pid)
+                    && Directory.Exists($"/proc/{pid}");
+                if (!running && Directory.GetCreationTimeUtc(dir) < DateTime.UtcNow.AddMinutes(-10))
+                {
+                    Directory.Delete(dir, recursive: true);
+                }
+            }
+            catch (IOException)
+            {
+                // Another process is using or deleting it: leave it.
+            }
+            catch (UnauthorizedAccessException)
+            {
+            }
+        }
     }
 
     private static string? FindBinDir()
