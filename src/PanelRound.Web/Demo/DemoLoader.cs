@@ -15,6 +15,9 @@ namespace PanelRound.Web.Demo;
 /// </summary>
 public sealed class DemoLoader(PanelRoundDbContext db, UserManager<StaffUser> users, IServiceProvider services, ILogger<DemoLoader> log, TimeProvider clock)
 {
+    /// <summary>The demo panels' time zone: invitations and reminders give each deadline in UTC and in it.</summary>
+    public const string DemoTimeZone = "Europe/London";
+
     /// <summary>Loads the scenario when the database has no indicators and no staff; returns whether it loaded.</summary>
     public async Task<bool> LoadIfEmptyAsync(string contentRoot, DemoOptions options)
     {
@@ -81,6 +84,8 @@ public sealed class DemoLoader(PanelRoundDbContext db, UserManager<StaffUser> us
                 Title = p.Title, Brief = p.Brief, StartsOn = p.StartsOn, TargetPeriods = p.TargetPeriods,
                 State = PanelState.Running, CreatedAt = p.StartsOn.ToDateTime(TimeOnly.MinValue, DateTimeKind.Utc).AddDays(-14),
                 CreatedBy = scenario.Staff[0].Email, ExternalKey = p.Key, Version = Guid.NewGuid(),
+                // The invented research desk experts write to; deadlines also in the desk's (real) time zone.
+                TimeZone = DemoTimeZone, ContactName = "Calderport research desk", ContactEmail = "research@calderport-demo.example",
             };
             var order = 0;
             foreach (var q in p.Questions)

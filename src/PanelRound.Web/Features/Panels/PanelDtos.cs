@@ -25,9 +25,10 @@ public sealed record PanelSettingsDto(
 }
 
 public sealed record PanelDto(int Id, string Title, string Brief, DateOnly StartsOn, IReadOnlyList<string> TargetPeriods, string State,
-    PanelSettingsDto Settings, DateTime CreatedAt, DateTime? ConcludedAt, IReadOnlyList<QuestionDto> Questions, IReadOnlyList<RoundDto> Rounds)
+    PanelSettingsDto Settings, DateTime CreatedAt, DateTime? ConcludedAt, IReadOnlyList<QuestionDto> Questions, IReadOnlyList<RoundDto> Rounds,
+    string TimeZone = "UTC", string? ContactName = null, string? ContactEmail = null)
 {
     public static PanelDto From(Panel p) => new(p.Id, p.Title, p.Brief, p.StartsOn, p.TargetPeriods.Split(','), p.State.ToString(), PanelSettingsDto.From(p.Settings),
         p.CreatedAt, p.ConcludedAt, p.Questions.OrderBy(q => q.Order).Select(QuestionDto.From).ToList(),
-        p.Rounds.OrderBy(r => r.Number).Select(RoundDto.From).ToList());
+        p.Rounds.OrderBy(r => r.Number).Select(RoundDto.From).ToList(), p.TimeZone, p.ContactName, p.ContactEmail);
 }

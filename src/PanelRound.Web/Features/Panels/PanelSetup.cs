@@ -6,7 +6,13 @@ using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Features.Panels;
 
-public sealed record PanelInput(string? Title, string? Brief, DateOnly? StartsOn, string? TargetPeriods, PanelSettingsInput? Settings = null);
+/// <summary>
+/// A panel as created or edited. <paramref name="TimeZone"/> is an IANA name (default <c>UTC</c>): messages to
+/// experts give each deadline in UTC and in this zone. The contact is whom experts ask about the panel; without
+/// one, messages name the facilitator who created it.
+/// </summary>
+public sealed record PanelInput(string? Title, string? Brief, DateOnly? StartsOn, string? TargetPeriods, PanelSettingsInput? Settings = null,
+    string? TimeZone = null, string? ContactName = null, string? ContactEmail = null);
 
 public sealed record QuestionInput(
     int? IndicatorId, string? Label, string? HelpText, string? Format, double? HardMin, double? HardMax,
@@ -100,6 +106,22 @@ public sealed class PanelSetup(PanelRoundDbContext db, TimeProvider clock)
             panel.TargetPeriods = string.Join(",", periods);
         }
         PanelSettingsRules.Apply(panel.Settings, input.Settings, errors);
+        var zone = string.IsNullOrWhiteSpace(input.TimeZone) ? "UTC" : input.TimeZone.Trim();
+        if (PanelTimes.Find(zone) is null)
+        {
+            errors.Add("timeZone", $"\"{(zone.Length > FieldLengths.TimeZone ? zone[..FieldLengths.TimeZone] + "…" : zone)}\" is not a time zone this server knows: give an IANA name such as Europe/Lisbon, America/New_York or UTC.");
+        }
+        else
+        {
+            panel.TimeZone = zone;
+        }
+        panel.ContactName = errors.Optional("contactName", input.ContactName, FieldLengths.Name, "Contact name");
+        var email = errors.Optional("contactEmail", input.ContactEmail, FieldLengths.Email, "Contact email");
+        if (email is not null && !MailAddresses.IsValid(email))
+        {
+            errors.Add("contactEmail", "Contact email is not an address mail can be sent to (one address such as research@firm.example).");
+        }
+        panel.ContactEmail = email;
         return errors;
     }
 

@@ -54,3 +54,98 @@ public sealed class PanelConclusion(PanelRoundDbContext db, TimeProvider clock, 
         return Result<IReadOnlyList<ConsensusEntry>>.Ok(entries);
     }
 }
+
+/// <summary>One question-period of the round a conclusion would publish: its n, convergence and stability, and what to watch.</summary>
+/// <param name="Period">The target period.</param>
+/// <param name="N">The answers counted.</param>
+/// <param name="RelativeIqr">IQR / |median|; null when undefined (median 0) or no answers.</param>
+/// <param name="ConsensusReached">The relative IQR is at most the threshold, with enough answers (as on the results page).</param>
+/// <param name="Stability">The moves since the previous round; null in round 1.</param>
+/// <param name="Warnings">Why the facilitator may hesitate: too few answers, consensus not reached.</param>
+public sealed record ConclusionPeriodReview(
+    string Period, int N, double? RelativeIqr, bool ConsensusReached, Core.Statistics.StabilityAssessment? Stability, IReadOnlyList<string> Warnings);
+
+/// <summary>A question in the review; a calibration question is listed but never published.</summary>
+public sealed record ConclusionQuestionReview(int QuestionId, string Label, bool Calibration, IReadOnlyList<ConclusionPeriodReview> Periods);
+
+/// <summary>
+/// What concluding would publish, read from the facilitator's results (<see cref="PanelResults"/>: the same
+/// convergence and stability as the results page) for the last closed round: per question-period n, the relative
+/// IQR against the consensus threshold, the share of experts who moved and the Wilcoxon p, with warnings where n
+/// is below the panel's minimum group size or consensus was not reached.
+/// </summary>
+public sealed record ConclusionReview(
+    int Round, DateTime? ClosedAt, double Threshold, int MinimumGroupSize, int MinimumForConsensus, IReadOnlyList<ConclusionQuestionReview> Questions)
+{
+    private IEnumerable<ConclusionPeriodReview> Published => Questions.Where(q => !q.Calibration).SelectMany(q => q.Periods).Where(p => p.N > 0);
+
+    /// <summary>The question-periods that get a consensus.</summary>
+    public int PublishedCount => Published.Count();
+
+    public int BelowMinimumCount => Published.Count(p => p.N < MinimumGroupSize);
+
+    public int NotReachedCount => Published.Count(p => !p.ConsensusReached);
+
+    public int FewestAnswers => Published.Select(p => p.N).DefaultIfEmpty(0).Min();
+
+    public int MostAnswers => Published.Select(p => p.N).DefaultIfEmpty(0).Max();
+
+    /// <summary>The review of the panel's last closed round; null when no round has closed.</summary>
+    public static ConclusionReview? From(Panel panel, PanelResultsView view)
+    {
+        var last = panel.Rounds.Where(r => r.State == RoundState.Closed).MaxBy(r => r.Number);
+        if (last is null)
+        {
+            return null;
+        }
+        var minimumForConsensus = Core.Statistics.Convergence.Assess(null, null, 0).MinimumN;
+        var calibration = panel.Questions.Where(q => q.IsCalibration).Select(q => q.Id).ToHashSet();
+        var questions = view.Questions.Select(q => new ConclusionQuestionReview(q.QuestionId, q.Label, calibration.Contains(q.QuestionId),
+            q.Periods.Select(p => p.Rounds.FirstOrDefault(r => r.Round == last.Number) is { } r
+                ? Period(p.Period, r, panel.Settings)
+                : new ConclusionPeriodReview(p.Period, 0, null, false, null, ["No answers: nothing is published for this period."])).ToList())).ToList();
+        return new ConclusionReview(last.Number, last.ClosedAt, panel.Settings.ConsensusThreshold, panel.Settings.MinimumGroupSize, minimumForConsensus, questions);
+    }
+
+    private static ConclusionPeriodReview Period(string period, RoundResult r, PanelSettings settings)
+    {
+        var n = r.Feedback.N;
+        var warnings = new List<string>();
+        var c = r.Convergence;
+        if (n == 0)
+        {
+            warnings.Add("No answers: nothing is published for this period.");
+        }
+        else
+        {
+            if (n < settings.MinimumGroupSize)
+            {
+                warnings.Add($"Only {n} answer{(n == 1 ? "" : "s")}: fewer than the panel's minimum group size ({settings.MinimumGroupSize}).");
+            }
+            if (!c.ConsensusReached)
+            {
+                warnings.Add(c.RelativeIqr is not { } iqr
+                    ? "Consensus not reached: the median is 0, so the relative IQR is undefined."
+                    : iqr > c.Threshold
+                        ? $"Consensus not reached: relative IQR {NumberText.Percent(iqr)} is above the threshold of {NumberText.Percent(c.Threshold)}."
+                        : $"Consensus not reached: it needs at least {c.MinimumN} answers.");
+            }
+        }
+        return new ConclusionPeriodReview(period, n, c.RelativeIqr, c.ConsensusReached, r.Stability, warnings);
+    }
+
+    /// <summary>What was published, for the message after concluding.</summary>
+    public string PublishedText()
+    {
+        var text = $"Panel concluded: the consensus of round {Round} is published for {PublishedCount} question-period{(PublishedCount == 1 ? "" : "s")}.";
+        if (BelowMinimumCount > 0)
+        {
+            text += $" {BelowMinimumCount} of them rest on fewer answers than the minimum group size ({MinimumGroupSize}).";
+        }
+        if (NotReachedCount > 0)
+        {
+            text += $" Consensus was not reached in {NotReachedCount}.";
+        }
+        return text;
+    }
+}

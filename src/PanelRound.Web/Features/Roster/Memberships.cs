@@ -63,7 +63,8 @@ public sealed class Memberships(PanelRoundDbContext db, TimeProvider clock, IMai
         var link = new IssuedLink(membership.Id, membership.PanelCode, token, "/e/" + token);
         if (sendInvitation)
         {
-            await TrySendAsync(actor, panelId, membership.Id, "invitation", MemberMail.Invitation(expert, panel, baseUrl.TrimEnd('/') + link.Path));
+            var (open, closed, contact) = await MailFactsAsync(panel);
+            await TrySendAsync(actor, panelId, membership.Id, "invitation", MemberMail.Invitation(expert, panel, open, closed, contact, baseUrl.TrimEnd('/') + link.Path));
         }
         return Result<IssuedLink>.Ok(link);
     }
@@ -91,7 +92,8 @@ public sealed class Memberships(PanelRoundDbContext db, TimeProvider clock, IMai
         var link = new IssuedLink(m.Id, m.PanelCode, token, "/e/" + token);
         if (sendInvitation)
         {
-            await TrySendAsync(actor, panelId, m.Id, "new-link", MemberMail.NewLink(m.Expert!, m.Panel, baseUrl.TrimEnd('/') + link.Path));
+            var (open, closed, contact) = await MailFactsAsync(m.Panel);
+            await TrySendAsync(actor, panelId, m.Id, "new-link", MemberMail.NewLink(m.Expert!, m.Panel, open, closed, contact, baseUrl.TrimEnd('/') + link.Path));
         }
         return Result<IssuedLink>.Ok(link);
     }
@@ -138,14 +140,41 @@ public sealed class Memberships(PanelRoundDbContext db, TimeProvider clock, IMai
             .Where(m => m.PanelId == panelId && m.State != MembershipState.Revoked).OrderBy(m => m.Id).ToListAsync())
             .Where(m => !answered.Contains(m.Id)).ToList();
         int sent = 0, failed = 0;
+        var contact = await ContactOfAsync(db, panel);
         foreach (var m in pending)
         {
-            var ok = await TrySendAsync(actor, panelId, m.Id, "reminder", MemberMail.Reminder(m.Expert!, panel, round));
+            var ok = await TrySendAsync(actor, panelId, m.Id, "reminder", MemberMail.Reminder(m.Expert!, panel, round, contact));
             (sent, failed) = ok ? (sent + 1, failed) : (sent, failed + 1);
         }
         Log(actor, "reminders.sent", "Round", round.Id, panelId, new { round.Number, count = sent, failed });
         await db.SaveChangesAsync();
         return Result<MailReport>.Ok(new MailReport(sent, failed));
+    }
+
+    /// <summary>
+    /// Whom experts contact about the panel: its contact (name, address) when one is set, otherwise the
+    /// staff member who created it (display name and address, when the creator was a signed-in person).
+    /// </summary>
+    public static async Task<MailContact> ContactOfAsync(PanelRoundDbContext db, Panel panel)
+    {
+        if (!string.IsNullOrWhiteSpace(panel.ContactName) || !string.IsNullOrWhiteSpace(panel.ContactEmail))
+        {
+            return new MailContact(panel.ContactName, panel.ContactEmail);
+        }
+        if (panel.CreatedBy is not { Length: > 0 } creator || !MailAddresses.IsValid(creator))
+        {
+            return new MailContact(null, null);
+        }
+        var normalized = creator.ToUpperInvariant();
+        var name = await db.Users.AsNoTracking().Where(u => u.NormalizedEmail == normalized).Select(u => u.DisplayName).FirstOrDefaultAsync();
+        return new MailContact(string.IsNullOrWhiteSpace(name) ? null : name, creator);
+    }
+
+    /// <summary>The panel's open round, how many rounds have closed, and its contact: what every message to a member says.</summary>
+    private async Task<(Round? Open, int Closed, MailContact Contact)> MailFactsAsync(Panel panel)
+    {
+        var rounds = await db.Rounds.AsNoTracking().Where(r => r.PanelId == panel.Id).ToListAsync();
+        return (rounds.FirstOrDefault(r => r.State == RoundState.Open), rounds.Count(r => r.State == RoundState.Closed), await ContactOfAsync(db, panel));
     }
 
     /// <summary>

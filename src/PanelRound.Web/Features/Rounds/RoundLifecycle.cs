@@ -12,12 +12,18 @@ namespace PanelRound.Web.Features.Rounds;
 /// </summary>
 public sealed class RoundLifecycle(PanelRoundDbContext db, TimeProvider clock)
 {
+    /// <summary>Why a round cannot open on a panel without an expert whose link works.</summary>
+    public const string NoExpertMessage = "Add at least one expert before opening a round: nobody could answer it.";
+
     private DateTime Now => clock.GetUtcNow().UtcDateTime;
 
     private void Log(string actor, string action, string entityType, object entityId, int? panelId, object? details = null) =>
         Audit.Record(db, actor, action, entityType, entityId, panelId, details, Now);
 
-    /// <summary>Opens the next round with a deadline; the first opening ends the draft.</summary>
+    /// <summary>
+    /// Opens the next round with a deadline; the first opening ends the draft. A panel without a question, or
+    /// without an expert whose link works (not revoked), is refused: nobody could answer the round.
+    /// </summary>
     public async Task<Result<Round>> OpenRoundAsync(int panelId, DateTime? closesAt, string actor)
     {
         var panel = await db.Panels.Include(p => p.Rounds).Include(p => p.Questions).Include(p => p.Memberships).FirstOrDefaultAsync(p => p.Id == panelId);
@@ -32,6 +38,10 @@ public sealed class RoundLifecycle(PanelRoundDbContext db, TimeProvider clock)
         if (panel.Rounds.Any(r => r.State == RoundState.Open))
         {
             return Result<Round>.Conflict("A round is open already; close it first.");
+        }
+        if (!panel.Memberships.Any(m => m.State != MembershipState.Revoked))
+        {
+            return Result<Round>.Conflict(NoExpertMessage);
         }
         var errors = new FieldErrors();
         var deadline = closesAt is { } c ? DateTime.SpecifyKind(c.Kind == DateTimeKind.Local ? c.ToUniversalTime() : c, DateTimeKind.Utc) : (DateTime?)null;

@@ -43,3 +43,35 @@ document.querySelectorAll('input[data-chart-series]').forEach(function (box) {
     });
   });
 });
+// Copies a one-time value: <button type="button" data-copy-target="input id">. Uses the clipboard where the
+// browser allows it, else selects the text (and tries the older copy command); says so on the button and to
+// screen readers through the page's [data-copy-status] live region.
+document.querySelectorAll('[data-copy-target]').forEach(function (btn) {
+  var label = btn.textContent;
+  btn.addEventListener('click', function () {
+    var input = document.getElementById(btn.getAttribute('data-copy-target'));
+    if (!input) return;
+    var status = document.querySelector('[data-copy-status]');
+    function done(ok) {
+      var text = ok ? 'Copied' : 'Selected: copy it now';
+      btn.textContent = ok ? 'Copied' : 'Selected';
+      if (status) {
+        status.textContent = '';
+        window.setTimeout(function () { status.textContent = text; }, 50);
+      }
+      window.setTimeout(function () { btn.textContent = label; }, 2500);
+    }
+    function fallback() {
+      input.focus();
+      input.select();
+      var ok = false;
+      try { ok = document.execCommand('copy'); } catch (e) { ok = false; }
+      done(ok);
+    }
+    if (navigator.clipboard && window.isSecureContext) {
+      navigator.clipboard.writeText(input.value).then(function () { done(true); }, fallback);
+    } else {
+      fallback();
+    }
+  });
+});

@@ -18,5 +18,9 @@ public class CreateModel(PanelSetup setup) : PageModel
     }
 
     public async Task<IActionResult> OnPostAsync() =>
-        await this.AnswerAsync(await setup.CreatePanelAsync(Input.ToInput(), Audit.ActorOf(User)), p => RedirectToPage("Details", new { id = p.Id }));
+        await this.AnswerAsync(await setup.CreatePanelAsync(Input.ToInput(), Audit.ActorOf(User)), p =>
+        {
+            TempData["flash"] = $"Draft panel \u201c{p.Title}\u201d created. Next: add its questions and experts, then open round 1.";
+            return RedirectToPage("Details", new { id = p.Id });
+        });
 }

@@ -1,3 +1,4 @@
+using System.Text.Json;
 using Microsoft.AspNetCore.Authorization;
 using Microsoft.AspNetCore.Mvc;
 using Microsoft.AspNetCore.Mvc.RazorPages;
@@ -20,8 +21,14 @@ namespace PanelRound.Web.Pages.Staff.Panels;
 [WritePolicy(AuthSetup.FacilitatorPolicy)]
 public class DetailsModel(
     PanelRoundDbContext db, PanelSetup setup, Memberships memberships, RoundLifecycle rounds, PanelConclusion conclusion, CalibrationTruths truths,
-    PanelRelations relations) : PageModel
+    PanelRelations relations, PanelResults results) : PageModel
 {
+    /// <summary>A personal link issued on this visit: whose it is and the link itself (a secret: never in a URL, never logged).</summary>
+    public sealed record IssuedLinkView(int PanelId, string Name, string PanelCode, string Link);
+
+    private const string LinksKey = "issued-links";
+
+    private const string ReturningKey = "returning";
     /// <summary>One term of the relation form as typed; the unit factor is read by <see cref="Numbers.TryParseEntry"/> with a decimal point.</summary>
     public sealed class RelationTermForm
     {
@@ -63,11 +70,34 @@ public class DetailsModel(
 
     public string BriefHtml { get; private set; } = "";
 
-    [TempData]
-    public string? IssuedLink { get; set; }
+    /// <summary>What the last action did, shown once after its redirect (<c>role="status"</c>).</summary>
+    [TempData(Key = "flash")]
+    public string? Flash { get; set; }
 
-    [TempData]
-    public string? Notice { get; set; }
+    /// <summary>
+    /// The personal links issued on this visit, newest first. They are carried across each of the page's own
+    /// redirects in TempData (an encrypted cookie, never the URL) and dropped when the page is opened afresh.
+    /// </summary>
+    public IReadOnlyList<IssuedLinkView> IssuedLinks { get; private set; } = [];
+
+    /// <summary><c>?review=conclude</c> shows what concluding would publish, with the box to tick.</summary>
+    [BindProperty(SupportsGet = true, Name = "review")]
+    public string? Review { get; set; }
+
+    /// <summary>The box "I have read this summary" of the conclusion review; concluding needs it.</summary>
+    [BindProperty]
+    public bool ConfirmConclusion { get; set; }
+
+    /// <summary>What concluding would publish; set when the review is shown.</summary>
+    public ConclusionReview? Conclusion { get; private set; }
+
+    /// <summary>Members whose link works (not revoked): a round needs at least one.</summary>
+    public int ActiveMembers => Panel.Memberships.Count(m => m.State != MembershipState.Revoked);
+
+    /// <summary>Whom experts are told to contact.</summary>
+    public MailContact Contact { get; private set; } = new(null, null);
+
+    public bool CanConclude => Panel.State != PanelState.Concluded && OpenRound is null && Panel.Rounds.Any(r => r.State == RoundState.Closed);
 
     [BindProperty]
     public DateTime? ClosesAt { get; set; }
@@ -79,6 +109,23 @@ public class DetailsModel(
 
     public async Task<IActionResult> OnGetAsync()
     {
+        // Links issued on this visit stay listed only while the page follows its own actions.
+        var returning = TempData[ReturningKey] is true;
+        return await LoadAsync(keepLinks: returning);
+    }
+
+    private async Task<IActionResult> LoadAsync(bool keepLinks = true)
+    {
+        IssuedLinks = keepLinks ? PeekLinks() : [];
+        if (!keepLinks)
+        {
+            TempData.Remove(LinksKey);
+        }
+        if (IssuedLinks.Count > 0)
+        {
+            // The page holds secrets: no cache may keep it.
+            Response.Headers.CacheControl = "no-store";
+        }
         var panel = await db.Panels.AsNoTracking().Include(p => p.Questions).ThenInclude(q => q.Indicator)
             .Include(p => p.Rounds).Include(p => p.Memberships).ThenInclude(m => m.Expert).FirstOrDefaultAsync(p => p.Id == Id);
         if (panel is null)
@@ -97,26 +144,38 @@ public class DetailsModel(
             CloseFailure = await RoundDeadlineService.LatestFailureAsync(db, panel.Id, open.Id);
         }
         ClosesAt ??= DateTime.UtcNow.Date.AddDays(15).AddHours(17);
+        Contact = await Memberships.ContactOfAsync(db, panel);
+        if (string.Equals(Review, "conclude", StringComparison.OrdinalIgnoreCase) && CanConclude && await results.BuildAsync(panel.Id) is { } view)
+        {
+            Conclusion = ConclusionReview.From(panel, view);
+        }
         return Page();
     }
 
     public async Task<IActionResult> OnPostAddMemberAsync(int expertId) =>
-        await LinkResult(await memberships.AddMemberAsync(Id, expertId, Audit.ActorOf(User), ApiResults.BaseUrl(Request)));
+        await LinkResult(await memberships.AddMemberAsync(Id, expertId, Audit.ActorOf(User), ApiResults.BaseUrl(Request)), "Added");
 
     public async Task<IActionResult> OnPostReissueAsync(int membershipId) =>
-        await LinkResult(await memberships.ReissueLinkAsync(Id, membershipId, Audit.ActorOf(User), ApiResults.BaseUrl(Request)));
+        await LinkResult(await memberships.ReissueLinkAsync(Id, membershipId, Audit.ActorOf(User), ApiResults.BaseUrl(Request)), "New link issued for");
 
     public async Task<IActionResult> OnPostRevokeAsync(int membershipId) =>
-        await Done(await memberships.RevokeLinkAsync(Id, membershipId, Audit.ActorOf(User)), "Link revoked.");
+        await Done(await memberships.RevokeLinkAsync(Id, membershipId, Audit.ActorOf(User)),
+            "Link revoked: it no longer opens anything, and its answers stop counting. Re-issue a link to re-admit the expert.");
 
     public async Task<IActionResult> OnPostRemoveQuestionAsync(int questionId) =>
         await Done(await setup.RemoveQuestionAsync(Id, questionId, Audit.ActorOf(User)), "Question removed.");
 
-    public async Task<IActionResult> OnPostOpenRoundAsync() =>
-        await Done(await rounds.OpenRoundAsync(Id, ClosesAt is { } c ? DateTime.SpecifyKind(c, DateTimeKind.Utc) : null, Audit.ActorOf(User)), "Round opened.");
+    public async Task<IActionResult> OnPostOpenRoundAsync()
+    {
+        var result = await rounds.OpenRoundAsync(Id, ClosesAt is { } c ? DateTime.SpecifyKind(c, DateTimeKind.Utc) : null, Audit.ActorOf(User));
+        return await Done(result, result.Value is { } r
+            ? $"Round {r.Number} is open until {PageSupport.Utc(r.ClosesAt)}. Experts see its questions through their links now."
+            : "");
+    }
 
     public async Task<IActionResult> OnPostCloseRoundAsync(int number) =>
-        await Done(await rounds.CloseRoundAsync(Id, number, Audit.ActorOf(User)), $"Round {number} closed; its feedback is frozen.");
+        await Done(await rounds.CloseRoundAsync(Id, number, Audit.ActorOf(User)),
+            $"Round {number} closed: its feedback is frozen and experts can no longer answer it. Open the next round or review and conclude.");
 
     public async Task<IActionResult> OnPostRemindAsync()
     {
@@ -136,7 +195,7 @@ public class DetailsModel(
             if (!reading.IsValid)
             {
                 ModelState.AddModelError("trueValue", "The true value " + reading.Error);
-                return await OnGetAsync();
+                return await LoadAsync();
             }
             value = reading.Value;
         }
@@ -169,16 +228,15 @@ public class DetailsModel(
         var input = new RelationInput(Relation.Shape, Term("Result", Relation.Result), Term("First", Relation.First), Term("Second", Relation.Second));
         if (ModelState.ErrorCount > 0)
         {
-            return await OnGetAsync();
+            return await LoadAsync();
         }
         var result = await relations.AddAsync(Id, input, Audit.ActorOf(User));
         if (result.IsOk)
         {
-            Notice = "Relation declared: " + RelationDto.FormulaOf(result.Value!);
-            return RedirectToPage(new { id = Id });
+            return Back("Relation declared: " + RelationDto.FormulaOf(result.Value!));
         }
         ModelState.AddResult(result, "Relation");
-        return await OnGetAsync();
+        return await LoadAsync();
     }
 
     public async Task<IActionResult> OnPostRemoveRelationAsync(int relationId) =>
@@ -188,27 +246,74 @@ public class DetailsModel(
     public string? ErrorFor(string key) =>
         ModelState.TryGetValue(key, out var entry) && entry.Errors.Count > 0 ? string.Join(" ", entry.Errors.Select(e => e.ErrorMessage)) : null;
 
-    public async Task<IActionResult> OnPostConcludeAsync() =>
-        await Done(await conclusion.ConcludeAsync(Id, Audit.ActorOf(User)), "Panel concluded; the consensus is published.");
+    /// <summary>
+    /// Concludes the panel once the facilitator has ticked "I have read this summary" under the review of what
+    /// would be published; the message afterwards says what was published and on how few answers.
+    /// </summary>
+    public async Task<IActionResult> OnPostConcludeAsync()
+    {
+        if (!ConfirmConclusion)
+        {
+            ModelState.AddModelError(nameof(ConfirmConclusion), "Read the summary of what would be published, then tick \u201cI have read this summary\u201d to conclude.");
+            Review = "conclude";
+            return await LoadAsync();
+        }
+        var panel = await db.Panels.AsNoTracking().Include(p => p.Questions).Include(p => p.Rounds).FirstOrDefaultAsync(p => p.Id == Id);
+        var review = panel is not null && await results.BuildAsync(Id) is { } view ? ConclusionReview.From(panel, view) : null;
+        var result = await conclusion.ConcludeAsync(Id, Audit.ActorOf(User));
+        if (!result.IsOk)
+        {
+            Review = "conclude";
+        }
+        return await Done(result, review?.PublishedText() ?? "Panel concluded; the consensus is published.");
+    }
 
-    private async Task<IActionResult> LinkResult(Result<IssuedLink> result)
+    private async Task<IActionResult> LinkResult(Result<IssuedLink> result, string verb)
     {
         if (result.IsOk)
         {
-            IssuedLink = $"{result.Value!.PanelCode}|{ApiResults.BaseUrl(Request)}{result.Value.Path}";
-            return RedirectToPage(new { id = Id });
+            var issued = result.Value!;
+            var name = await db.Memberships.AsNoTracking().Where(m => m.Id == issued.MembershipId).Select(m => m.Expert!.Name).FirstOrDefaultAsync() ?? issued.PanelCode;
+            var links = PeekLinks().Prepend(new IssuedLinkView(Id, name, issued.PanelCode, $"{ApiResults.BaseUrl(Request)}{issued.Path}")).ToList();
+            TempData[LinksKey] = JsonSerializer.Serialize(links);
+            return Back($"{verb} {name} ({issued.PanelCode}): copy the personal link below now; it is shown only on this visit. It was also sent by email (or written to the outbox without a mail server).");
         }
         return await Done(result, "");
     }
 
-    private async Task<IActionResult> Done<T>(Result<T> result, string notice)
+    private async Task<IActionResult> Done<T>(Result<T> result, string flash)
     {
         if (result.IsOk)
         {
-            Notice = notice;
-            return RedirectToPage(new { id = Id });
+            return Back(flash);
         }
         ModelState.AddResult(result, "");
-        return await OnGetAsync();
+        return await LoadAsync();
+    }
+
+    /// <summary>Back to the page after an action, with its message; the links issued on this visit stay listed.</summary>
+    private RedirectToPageResult Back(string flash)
+    {
+        Flash = flash;
+        TempData[ReturningKey] = true;
+        TempData.Keep(LinksKey);
+        return RedirectToPage(new { id = Id });
+    }
+
+    /// <summary>The links issued on this visit to this panel (read without using them up).</summary>
+    private List<IssuedLinkView> PeekLinks()
+    {
+        if (TempData.Peek(LinksKey) is not string json)
+        {
+            return [];
+        }
+        try
+        {
+            return (JsonSerializer.Deserialize<List<IssuedLinkView>>(json) ?? []).Where(l => l.PanelId == Id).ToList();
+        }
+        catch (JsonException)
+        {
+            return [];
+        }
     }
 }

@@ -34,5 +34,9 @@ public class EditModel(PanelRoundDbContext db, PanelSetup setup) : PageModel
     }
 
     public async Task<IActionResult> OnPostAsync() =>
-        await this.AnswerAsync(await setup.UpdatePanelAsync(Id, Input.ToInput(), Audit.ActorOf(User)), _ => RedirectToPage("Details", new { id = Id }));
+        await this.AnswerAsync(await setup.UpdatePanelAsync(Id, Input.ToInput(), Audit.ActorOf(User)), _ =>
+        {
+            TempData["flash"] = "Panel saved.";
+            return RedirectToPage("Details", new { id = Id });
+        });
 }

@@ -19,6 +19,16 @@ public sealed class PanelForm
     [Display(Name = "Target periods")]
     public string? TargetPeriods { get; set; }
 
+    /// <summary>An IANA time zone name; messages to experts give each deadline in UTC and in this zone.</summary>
+    [Display(Name = "Time zone")]
+    public string? TimeZone { get; set; } = "UTC";
+
+    [Display(Name = "Contact name")]
+    public string? ContactName { get; set; }
+
+    [Display(Name = "Contact email")]
+    public string? ContactEmail { get; set; }
+
     public SettingsForm Settings { get; set; } = new();
 
     /// <summary>The settings as the form edits them; a new form starts from the defaults of <see cref="PanelSettings"/>, their one home.</summary>
@@ -64,11 +74,13 @@ public sealed class PanelForm
         Settings.OutlierRule.ToString(), Settings.TrimFraction, Settings.ConsensusThreshold, Settings.StabilityThreshold,
         Settings.RoundCap, Settings.MinimumGroupSize, Settings.ShowRationales, Settings.OutliersMustJustify, Settings.Weighting.ToString(),
         Settings.ShowBenchmarkToExperts, Settings.ExpertBenchmark, Settings.BenchmarkWindow, Settings.RelationTolerance,
-        Settings.CalibrationCutoff, Settings.CalibrationCutoff is null, Settings.CalibrationOvershoot, Settings.CalibrationUsesFirstRound));
+        Settings.CalibrationCutoff, Settings.CalibrationCutoff is null, Settings.CalibrationOvershoot, Settings.CalibrationUsesFirstRound),
+        TimeZone, ContactName, ContactEmail);
 
     public static PanelForm From(Panel p) => new()
     {
         Title = p.Title, Brief = p.Brief, StartsOn = p.StartsOn, TargetPeriods = p.TargetPeriods.Replace(",", ", ", StringComparison.Ordinal),
+        TimeZone = p.TimeZone, ContactName = p.ContactName, ContactEmail = p.ContactEmail,
         Settings = new SettingsForm
         {
             OutlierRule = p.Settings.OutlierRule, TrimFraction = p.Settings.TrimFraction, ConsensusThreshold = p.Settings.ConsensusThreshold,

@@ -78,7 +78,11 @@ public class QuestionModel(PanelRoundDbContext db, PanelSetup setup) : PageModel
         var result = QuestionId is { } id
             ? await setup.UpdateQuestionAsync(PanelId, id, input, Audit.ActorOf(User))
             : await setup.AddQuestionAsync(PanelId, input, Audit.ActorOf(User));
-        return await this.AnswerAsync(result, _ => RedirectToPage("Details", new { id = PanelId }), LoadAsync);
+        return await this.AnswerAsync(result, q =>
+        {
+            TempData["flash"] = QuestionId is null ? $"Question \u201c{q.Label}\u201d added." : $"Question \u201c{q.Label}\u201d saved.";
+            return RedirectToPage("Details", new { id = PanelId });
+        }, LoadAsync);
     }
 
     private async Task LoadAsync()
