@@ -93,11 +93,36 @@ public sealed record ChartModel(string Title, string Unit, int Decimals, IReadOn
     /// by the stylesheet (<c>charts.css</c>: <c>.chart-wide</c> and <c>.chart-narrow</c>), so that at 375 px the labels
     /// are still about 11 px high. Both have the same series, groups and legend.
     /// </summary>
+    /// <remarks>The phone drawing starts at most <see cref="NarrowYears"/> years before the chart's last period, so that a long history does not squeeze the forecasts into its right edge.</remarks>
     public string ToResponsiveSvg(double width = 640, double height = 260) =>
-        ToSvg(width, height, cssClass: "chart-wide") + ToSvg(NarrowWidth, NarrowHeight, NarrowTextScale, "chart-narrow");
+        ToSvg(width, height, cssClass: "chart-wide") + Recent(NarrowYears).ToSvg(NarrowWidth, NarrowHeight, NarrowTextScale, "chart-narrow");
 
     /// <summary>The narrow drawing's view box and text scale: shown at about 340 px wide, its 8-unit labels are about 11 px.</summary>
     internal const double NarrowWidth = 340, NarrowHeight = 300, NarrowTextScale = 1.35;
+
+    /// <summary>The years the phone drawing spans at most.</summary>
+    internal const int NarrowYears = 9;
+
+    /// <summary>The chart cut to the periods of its last <paramref name="years"/> years (a series left with no point keeps its legend entry).</summary>
+    internal ChartModel Recent(int years)
+    {
+        var points = Series.SelectMany(s => s.Points).ToList();
+        if (points.Count == 0)
+        {
+            return this;
+        }
+        var from = points.Max(p => p.Period.Year) - years + 1;
+        if (points.All(p => p.Period.Year >= from))
+        {
+            return this;
+        }
+        // The title says the drawing is cut, so that no one reads the first year shown as the series' start.
+        return this with
+        {
+            Title = Title + string.Create(CultureInfo.InvariantCulture, $", from {from}"),
+            Series = Series.Select(s => s with { Points = s.Points.Where(p => p.Period.Year >= from).ToList() }).ToList(),
+        };
+    }
 
     /// <summary>The text alternative: the title and what is drawn, series by series.</summary>
     internal string AltText()

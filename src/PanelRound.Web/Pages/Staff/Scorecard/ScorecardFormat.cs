@@ -44,6 +44,15 @@ public static class ScorecardFormat
         _ => Dash,
     };
 
+    /// <summary>The bias direction in a word or two, for a table whose header explains it.</summary>
+    public static string BiasShort(BiasDirection? bias) => bias switch
+    {
+        BiasDirection.OverForecasts => "over-forecasts",
+        BiasDirection.UnderForecasts => "under-forecasts",
+        BiasDirection.Neutral => "no clear lean",
+        _ => Dash,
+    };
+
     /// <summary>Round 1 to final: negative scaled change means the rounds improved the forecasts; one that rounds to zero is neither.</summary>
     public static string Change(double? change)
     {
@@ -82,6 +91,6 @@ public static class ScorecardFormat
     public static IHtmlContent Chart(IndicatorTrack track) =>
         track.Observed.Count == 0 && track.Final.Count == 0
             ? HtmlString.Empty
-            : new HtmlString("<div class=\"chart track-chart-box\">" + TrackChart(track).ToResponsiveSvg(720, 280) + "</div>");
+            : new HtmlString("<div class=\"chart track-chart-box\">" + TrackChart(track).ToResponsiveSvg(640, 270) + "</div>");
 
 }
