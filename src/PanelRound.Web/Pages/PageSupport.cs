@@ -2,6 +2,7 @@ using System.Globalization;
 using Microsoft.AspNetCore.Mvc;
 using Microsoft.AspNetCore.Mvc.ModelBinding;
 using Microsoft.AspNetCore.Mvc.RazorPages;
+using PanelRound.Data.Entities;
 using PanelRound.Web.Infrastructure;
 
 namespace PanelRound.Web.Pages;
@@ -60,7 +61,24 @@ public static class PageSupport
     /// <summary>A number for display with the indicator's decimals, in the invariant culture.</summary>
     public static string Num(double? v, int decimals) => NumberText.Fixed(v, decimals);
 
+    /// <summary>A difference with its sign (<c>+1.50</c>, <c>-0.20</c>); one that rounds to zero is <c>0.00</c>, never <c>-0.00</c>.</summary>
+    public static string Signed(double? v, int decimals) => NumberText.Signed(v, decimals);
+
     public static string Pct(double? v) => NumberText.Percent(v, 1);
+
+    /// <summary>A question's response format in words, e.g. for a heading: "single value" or "range: P10, P50, P90".</summary>
+    public static string FormatWords(ResponseFormat format) => format == ResponseFormat.Range ? "range: P10, P50, P90" : "single value";
+
+    /// <summary>
+    /// A consensus weighting as the API and the comparisons name it (<c>Equal</c>, <c>TrackRecord</c>, <c>Calibration</c>) in words,
+    /// as in "this panel publishes with track-record weights".
+    /// </summary>
+    public static string WeightingWords(string weighting) => weighting switch
+    {
+        nameof(ConsensusWeighting.TrackRecord) => "track-record weights",
+        nameof(ConsensusWeighting.Calibration) => "calibration-question weights",
+        _ => "equal weights",
+    };
 
     /// <summary>A value for an input field (invariant, full precision).</summary>
     public static string Raw(double? v) => v?.ToString("R", CultureInfo.InvariantCulture) ?? "";

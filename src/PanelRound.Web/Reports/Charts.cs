@@ -41,23 +41,31 @@ public sealed record ChartSeries(string Label, SeriesKind Kind, string Colour, I
 public sealed record ChartModel(string Title, string Unit, int Decimals, IReadOnlyList<ChartSeries> Series)
 {
     /// <summary>The printed drawing in abstract shapes (hidden series left out), laid out for a width and height in points (1/72 in).</summary>
-    public IReadOnlyList<Shape> Layout(double width, double height) => ChartLayout.Build(this, width, height, withHidden: false);
+    public IReadOnlyList<Shape> Layout(double width, double height) => ChartLayout.Build(this, width, height, withHidden: false, new ChartStyle(1));
 
     /// <summary>
     /// An accessible SVG element (role img, a title, and a text alternative). A series with a <see cref="ChartSeries.Key"/>
     /// is drawn into its own group (<c>&lt;g data-series="key"&gt;</c>), hidden when the series is; the height grows
-    /// by a row for each legend row beyond two, so a long legend never squeezes the plot.
+    /// by a row for each legend row beyond two, so a long legend never squeezes the plot. Every series has a legend entry,
+    /// a hidden one too (after the shown ones, in its hidden group), so that a series a reader shows is never a colour without a name.
     /// </summary>
-    public string ToSvg(double width = 640, double height = 260)
+    /// <param name="width">The width of the view box.</param>
+    /// <param name="height">The height of the view box before the legend grows it.</param>
+    /// <param name="textScale">Text sizes (and the margins that hold text) as a multiple of the printed ones: above 1 for a narrow view box shown on a phone.</param>
+    /// <param name="cssClass">A class for the element, or null.</param>
+    public string ToSvg(double width = 640, double height = 260, double textScale = 1, string? cssClass = null)
     {
-        height += Math.Max(0, ChartLayout.LegendRowCount(this, width) - 2) * ChartLayout.LegendRow;
+        var style = new ChartStyle(textScale);
+        height += Math.Max(0, ChartLayout.LegendRowCount(this, width, style, withHidden: true) - 2) * style.LegendRow;
+        height += (ChartLayout.TitleLines(this, width, style).Count - 1) * style.TitleLine;
         var sb = new StringBuilder();
-        sb.Append(Inv($"<svg xmlns=\"http://www.w3.org/2000/svg\" viewBox=\"0 0 {width:0} {height:0}\" width=\"100%\" role=\"img\" aria-label=\"{Esc(Title)}\" font-family=\"DejaVu Sans, Arial, sans-serif\">"));
+        sb.Append(Inv($"<svg xmlns=\"http://www.w3.org/2000/svg\" viewBox=\"0 0 {width:0} {height:0}\" width=\"100%\"{(cssClass is null ? "" : " class=\"" + Esc(cssClass) + "\"")} role=\"img\" aria-label=\"{Esc(AltText())}\" font-family=\"DejaVu Sans, Arial, sans-serif\">"));
         sb.Append("<title>").Append(Esc(Title)).Append("</title>");
         string? group = null;
-        foreach (var s in ChartLayout.Build(this, width, height, withHidden: true))
+        var hidden = false;
+        foreach (var s in ChartLayout.Build(this, width, height, withHidden: true, style))
         {
-            if (s.Series != group)
+            if (s.Series != group || (s.Series is not null && s.Hidden != hidden))
             {
                 if (group is not null)
                 {
@@ -68,6 +76,7 @@ public sealed record ChartModel(string Title, string Unit, int Decimals, IReadOn
                     sb.Append("<g data-series=\"").Append(Esc(s.Series)).Append('"').Append(s.Hidden ? " visibility=\"hidden\">" : ">");
                 }
                 group = s.Series;
+                hidden = s.Hidden;
             }
             sb.Append(s.ToSvg());
         }
@@ -77,6 +86,54 @@ public sealed record ChartModel(string Title, string Unit, int Decimals, IReadOn
         }
         sb.Append("</svg>");
         return sb.ToString();
+    }
+
+    /// <summary>
+    /// The chart for a page: a wide drawing for screens and a narrow one with larger text for phones, one of them shown
+    /// by the stylesheet (<c>charts.css</c>: <c>.chart-wide</c> and <c>.chart-narrow</c>), so that at 375 px the labels
+    /// are still about 11 px high. Both have the same series, groups and legend.
+    /// </summary>
+    /// <remarks>The phone drawing starts at most <see cref="NarrowYears"/> years before the chart's last period, so that a long history does not squeeze the forecasts into its right edge.</remarks>
+    public string ToResponsiveSvg(double width = 640, double height = 260) =>
+        ToSvg(width, height, cssClass: "chart-wide") + Recent(NarrowYears).ToSvg(NarrowWidth, NarrowHeight, NarrowTextScale, "chart-narrow");
+
+    /// <summary>The narrow drawing's view box and text scale: shown at about 340 px wide, its 8-unit labels are about 11 px.</summary>
+    internal const double NarrowWidth = 340, NarrowHeight = 300, NarrowTextScale = 1.35;
+
+    /// <summary>The years the phone drawing spans at most.</summary>
+    internal const int NarrowYears = 9;
+
+    /// <summary>The chart cut to the periods of its last <paramref name="years"/> years (a series left with no point keeps its legend entry).</summary>
+    internal ChartModel Recent(int years)
+    {
+        var points = Series.SelectMany(s => s.Points).ToList();
+        if (points.Count == 0)
+        {
+            return this;
+        }
+        var from = points.Max(p => p.Period.Year) - years + 1;
+        if (points.All(p => p.Period.Year >= from))
+        {
+            return this;
+        }
+        // The title says the drawing is cut, so that no one reads the first year shown as the series' start.
+        return this with
+        {
+            Title = Title + string.Create(CultureInfo.InvariantCulture, $", from {from}"),
+            Series = Series.Select(s => s with { Points = s.Points.Where(p => p.Period.Year >= from).ToList() }).ToList(),
+        };
+    }
+
+    /// <summary>The text alternative: the title and what is drawn, series by series.</summary>
+    internal string AltText()
+    {
+        var shown = Series.Where(s => !s.Hidden && s.Points.Count > 0).ToList();
+        if (shown.Count == 0)
+        {
+            return Title + ": no data to chart.";
+        }
+        var periods = shown.SelectMany(s => s.Points).Select(p => p.Period).ToList();
+        return $"{Title}{(Unit.Length > 0 ? " (" + Unit + ")" : "")}, {periods.Min()} to {periods.Max()}: {string.Join("; ", shown.Select(s => s.Label))}.";
     }
 
     /// <summary>Draws the chart as vectors (text stays text) into a rectangle of a PDF page.</summary>
@@ -162,13 +219,27 @@ public sealed record TextShape(double X, double Y, string Text, double Size, str
     }
 }
 
+/// <summary>Text sizes and the spacing that depends on them, as a multiple (<paramref name="TextScale"/>) of the printed ones.</summary>
+internal sealed record ChartStyle(double TextScale)
+{
+    public double Title => 10 * TextScale;
+
+    public double Label => 8 * TextScale;
+
+    public double TitleLine => 13 * TextScale;
+
+    public double LegendRow => 16 * TextScale;
+
+    public double AxisHeight => 22 * TextScale;
+
+    /// <summary>An estimate of a text's width (DejaVu Sans averages about 0.58 em a character).</summary>
+    public static double TextWidth(string text, double size) => text.Length * size * 0.58;
+}
+
 /// <summary>Lays a <see cref="ChartModel"/> out into shapes.</summary>
 internal static class ChartLayout
 {
-    /// <summary>The height of a legend row.</summary>
-    public const double LegendRow = 16;
-
-    private const double Left = 58, Right = 12, Top = 26, AxisHeight = 22;
+    private const double Right = 12;
 
     /// <summary>A period's position in time: the middle of its year or quarter, in years.</summary>
     public static double TimeOf(Period p) => p.IsYear ? p.Year + 0.5 : p.Year + ((p.Quarter - 0.5) / 4.0);
@@ -176,61 +247,102 @@ internal static class ChartLayout
     /// <summary>The spacing of consecutive periods of the same kind, in years.</summary>
     private static double StepOf(Period p) => p.IsYear ? 1 : 0.25;
 
-    /// <summary>The number of legend rows at a width (the shown series only).</summary>
-    public static int LegendRowCount(ChartModel model, double width)
+    /// <summary>The number of legend rows at a width: the shown series, and with <paramref name="withHidden"/> the hidden ones too.</summary>
+    public static int LegendRowCount(ChartModel model, double width, ChartStyle style, bool withHidden)
     {
-        LegendEntries(model.Series.Where(s => !s.Hidden).ToList(), width, out var rows);
+        LegendEntries(LegendSeries(model, withHidden), width, style, out var rows);
         return rows;
     }
 
-    /// <summary>The shapes; <paramref name="withHidden"/> draws the hidden series too (marked hidden) and scales the axis to them.</summary>
-    public static IReadOnlyList<Shape> Build(ChartModel model, double width, double height, bool withHidden)
+    /// <summary>The series in the legend, in order: the shown ones, then (with <paramref name="withHidden"/>) the hidden ones.</summary>
+    private static List<ChartSeries> LegendSeries(ChartModel model, bool withHidden) =>
+        [.. model.Series.Where(s => !s.Hidden), .. withHidden ? model.Series.Where(s => s.Hidden) : []];
+
+    /// <summary>The title (with its unit) broken into lines that fit the width.</summary>
+    public static IReadOnlyList<string> TitleLines(ChartModel model, double width, ChartStyle style)
+    {
+        var text = model.Unit.Length > 0 ? $"{model.Title} ({model.Unit})" : model.Title;
+        var perLine = Math.Max(12, (int)((width - 8 - Right) / (style.Title * 0.62)));
+        var lines = new List<string>();
+        var line = "";
+        foreach (var word in text.Split(' ', StringSplitOptions.RemoveEmptyEntries))
+        {
+            if (line.Length > 0 && line.Length + 1 + word.Length > perLine)
+            {
+                lines.Add(line);
+                line = word;
+            }
+            else
+            {
+                line = line.Length == 0 ? word : line + " " + word;
+            }
+        }
+        lines.Add(line);
+        return lines;
+    }
+
+    /// <summary>The left margin: room for the longest value label.</summary>
+    private static double LeftOf(ChartModel model, ChartStyle style)
+    {
+        var values = model.Series.SelectMany(s => s.Points).SelectMany(p => new[] { p.Value, p.Low ?? p.Value, p.High ?? p.Value }).Where(double.IsFinite).ToList();
+        if (values.Count == 0)
+        {
+            return 8;
+        }
+        var (_, _, ticks) = NiceScale(values.Min(), values.Max());
+        var widest = ticks.Max(t => ChartStyle.TextWidth(Number(t, model.Decimals), style.Label));
+        return Math.Max(30, widest + 12);
+    }
+
+    /// <summary>The shapes; <paramref name="withHidden"/> draws the hidden series too (marked hidden), scales the axis to them and gives them legend entries.</summary>
+    public static IReadOnlyList<Shape> Build(ChartModel model, double width, double height, bool withHidden, ChartStyle style)
     {
         var shapes = new List<Shape>();
         var drawn = model.Series.Where(s => withHidden || !s.Hidden).ToList();
         var points = drawn.SelectMany(s => s.Points).ToList();
-        shapes.Add(new TextShape(Left, 14, model.Unit.Length > 0 ? $"{model.Title} ({model.Unit})" : model.Title, 10, "start", "#222222", Bold: true));
-        if (points.Count == 0)
+        var left = LeftOf(model, style);
+        var titleLines = TitleLines(model, width, style);
+        for (var i = 0; i < titleLines.Count; i++)
         {
-            shapes.Add(new TextShape(width / 2, height / 2, "No data to chart.", 9, "middle", "#777777"));
+            shapes.Add(new TextShape(8, (14 * style.TextScale) + (i * style.TitleLine), titleLines[i], style.Title, "start", "#222222", Bold: true));
+        }
+        var top = (26 * style.TextScale) + ((titleLines.Count - 1) * style.TitleLine);
+        var values = points.SelectMany(p => new[] { p.Value, p.Low ?? p.Value, p.High ?? p.Value }).Where(double.IsFinite).ToList();
+        if (points.Count == 0 || values.Count == 0)
+        {
+            shapes.Add(new TextShape(width / 2, height / 2, "No data to chart.", 9 * style.TextScale, "middle", "#595959"));
             return shapes;
         }
 
         // The legend: as many entries per row as fit, below the axis.
-        var legend = LegendEntries(drawn.Where(s => !s.Hidden).ToList(), width, out var legendRows);
-        var plotBottom = height - AxisHeight - (legendRows * LegendRow) - 4;
-        var values = points.SelectMany(p => new[] { p.Value, p.Low ?? p.Value, p.High ?? p.Value }).Where(double.IsFinite).ToList();
-        if (values.Count == 0)
-        {
-            shapes.Add(new TextShape(width / 2, height / 2, "No data to chart.", 9, "middle", "#777777"));
-            return shapes;
-        }
+        var legend = LegendEntries(LegendSeries(model, withHidden), width, style, out var legendRows);
+        var plotBottom = height - style.AxisHeight - (legendRows * style.LegendRow) - 4;
         var (min, max, ticks) = NiceScale(values.Min(), values.Max());
         var t0 = points.Min(p => TimeOf(p.Period)) - 0.5;
         var t1 = points.Max(p => TimeOf(p.Period)) + 0.5;
-        double X(double t) => Left + ((t - t0) / (t1 - t0) * (width - Left - Right));
-        double Y(double v) => Top + ((max - v) / (max - min) * (plotBottom - Top));
+        double X(double t) => left + ((t - t0) / (t1 - t0) * (width - left - Right));
+        double Y(double v) => top + ((max - v) / (max - min) * (plotBottom - top));
 
         foreach (var tick in ticks)
         {
-            shapes.Add(new LineShape(Left, Y(tick), width - Right, Y(tick), "#e3e3e3", 0.6));
-            shapes.Add(new TextShape(Left - 5, Y(tick) + 3, Number(tick, model.Decimals), 8, "end", "#555555"));
+            shapes.Add(new LineShape(left, Y(tick), width - Right, Y(tick), "#e3e3e3", 0.6));
+            shapes.Add(new TextShape(left - 5, Y(tick) + (style.Label * 0.38), Number(tick, model.Decimals), style.Label, "end", "#4d4d4d"));
         }
-        shapes.Add(new LineShape(Left, plotBottom, width - Right, plotBottom, "#999999", 0.8));
+        shapes.Add(new LineShape(left, plotBottom, width - Right, plotBottom, "#999999", 0.8));
         var firstYear = (int)Math.Floor(t0 + 0.5);
         var lastYear = (int)Math.Floor(t1 - 0.5);
-        var every = Math.Max(1, (int)Math.Ceiling((lastYear - firstYear + 1) / ((width - Left - Right) / 38.0)));
+        var every = Math.Max(1, (int)Math.Ceiling((lastYear - firstYear + 1) / ((width - left - Right) / (ChartStyle.TextWidth("2000", style.Label) + (8 * style.TextScale)))));
         for (var y = firstYear; y <= lastYear; y++)
         {
             shapes.Add(new LineShape(X(y), plotBottom, X(y), plotBottom + 3, "#999999", 0.6));
             if ((y - firstYear) % every == 0)
             {
-                shapes.Add(new TextShape(X(y + 0.5), plotBottom + 13, y.ToString(CultureInfo.InvariantCulture), 8, "middle", "#555555"));
+                shapes.Add(new TextShape(X(y + 0.5), plotBottom + (13 * style.TextScale), y.ToString(CultureInfo.InvariantCulture), style.Label, "middle", "#4d4d4d"));
             }
         }
 
         var slots = Math.Max(1, drawn.Count(x => x.Kind == SeriesKind.Band));
-        var bandWidth = Math.Max(2.5, Math.Min(12, (width - Left - Right) / Math.Max(1, (t1 - t0) / points.Min(p => StepOf(p.Period))) * 0.8 / slots));
+        var bandWidth = Math.Max(2.5, Math.Min(12, (width - left - Right) / Math.Max(1, (t1 - t0) / points.Min(p => StepOf(p.Period))) * 0.8 / slots));
         // Band series side by side within a period, so that rounds and the consensus do not hide each other.
         var bands = drawn.Where(x => x.Kind == SeriesKind.Band).ToList();
         foreach (var s in drawn)
@@ -240,12 +352,16 @@ internal static class ChartLayout
             if (s.Kind == SeriesKind.Band)
             {
                 var offset = (bands.IndexOf(s) - ((bands.Count - 1) / 2.0)) * bandWidth * 1.1;
-                foreach (var p in ordered.Where(p => p.Low.HasValue && p.High.HasValue))
+                foreach (var p in ordered.Where(p => double.IsFinite(p.Value)))
                 {
                     var x = X(TimeOf(p.Period)) + offset;
-                    var top = Y(p.High!.Value);
-                    Add(new RectShape(x - (bandWidth / 2), top, bandWidth, Math.Max(0.8, Y(p.Low!.Value) - top), s.Colour, 0.35,
-                        $"{s.Label} {p.Period}: {Number(p.Low.Value, model.Decimals)} to {Number(p.High.Value, model.Decimals)}"));
+                    // A value without a band (a single-value answer among ranges) is the dot alone.
+                    if (p.Low is { } low && p.High is { } high)
+                    {
+                        var rectTop = Y(high);
+                        Add(new RectShape(x - (bandWidth / 2), rectTop, bandWidth, Math.Max(0.8, Y(low) - rectTop), s.Colour, 0.35,
+                            $"{s.Label} {p.Period}: {Number(low, model.Decimals)} to {Number(high, model.Decimals)}"));
+                    }
                     Add(new DotShape(x, Y(p.Value), 2.6, s.Colour, $"{s.Label} {p.Period}: {Number(p.Value, model.Decimals)}"));
                 }
                 continue;
@@ -265,22 +381,23 @@ internal static class ChartLayout
             Flush(run, s, Add);
         }
 
-        var ly = plotBottom + AxisHeight + 8;
+        var ly = plotBottom + style.AxisHeight + (8 * style.TextScale);
         foreach (var (s, x, row) in legend)
         {
-            var y = ly + (row * LegendRow);
-            // A legend entry goes with its series: a control that hides the series hides its entry too.
-            void Add(Shape shape) => shapes.Add(s.Key is null ? shape : shape with { Series = s.Key });
+            var y = ly + (row * style.LegendRow);
+            var k = style.TextScale;
+            // A legend entry goes with its series: a control that shows or hides the series shows or hides its entry too.
+            void Add(Shape shape) => shapes.Add(s.Key is null ? shape : shape with { Series = s.Key, Hidden = s.Hidden });
             if (s.Kind == SeriesKind.Band)
             {
-                Add(new RectShape(x, y - 8, 10, 10, s.Colour, 0.35));
-                Add(new DotShape(x + 5, y - 3, 2.2, s.Colour));
+                Add(new RectShape(x, y - (8 * k), 10 * k, 10 * k, s.Colour, 0.35));
+                Add(new DotShape(x + (5 * k), y - (3 * k), 2.2 * k, s.Colour));
             }
             else
             {
-                Add(new PolylineShape([(x, y - 3), (x + 16, y - 3)], s.Colour, 2, s.Dashed));
+                Add(new PolylineShape([(x, y - (3 * k)), (x + (16 * k), y - (3 * k))], s.Colour, 2, s.Dashed));
             }
-            Add(new TextShape(x + 20, y, s.Label, 8, "start", "#333333"));
+            Add(new TextShape(x + (20 * k), y, s.Label, style.Label, "start", "#333333"));
         }
         return shapes;
     }
@@ -294,19 +411,20 @@ internal static class ChartLayout
         run.Clear();
     }
 
-    private static List<(ChartSeries Series, double X, int Row)> LegendEntries(IReadOnlyList<ChartSeries> series, double width, out int rows)
+    private static List<(ChartSeries Series, double X, int Row)> LegendEntries(IReadOnlyList<ChartSeries> series, double width, ChartStyle style, out int rows)
     {
         var list = new List<(ChartSeries, double, int)>();
-        double x = Left;
+        // The legend starts at the drawing's left edge, as the title does: on a narrow drawing every character counts.
+        var start = 8 * style.TextScale;
+        var x = start;
         var row = 0;
         foreach (var s in series)
         {
-            // An estimate of the text width (DejaVu Sans at 8 pt averages about 4.6 pt a character).
-            var w = 20 + (s.Label.Length * 4.6) + 14;
-            if (x + w > width - Right && x > Left)
+            var w = (34 * style.TextScale) + ChartStyle.TextWidth(s.Label, style.Label);
+            if (x + w > width - Right && x > start)
             {
                 row++;
-                x = Left;
+                x = start;
             }
             list.Add((s, x, row));
             x += w;

@@ -137,9 +137,9 @@ public abstract class BenchmarkTests(IDatabaseFixture fixture) : ProviderTests(f
         var pages = await StaffPages.SignedInClientAsync(app, "Reviewer");
         var html = await pages.GetStringAsync("/staff/scorecard");
         Assert.Contains("id=\"skill-vs-best\"", html, StringComparison.Ordinal);
-        Assert.Contains("Benchmark: damped", html, StringComparison.Ordinal);
+        Assert.Contains("Benchmark: Damped trend", html, StringComparison.Ordinal);
         var panelHtml = await pages.GetStringAsync($"/staff/scorecard/panel/{panelId}");
-        Assert.Contains("Benchmark: naive", panelHtml, StringComparison.Ordinal);
+        Assert.Contains("Benchmark: No change (naive)", panelHtml, StringComparison.Ordinal);
     }
 
     [SkippableFact]

@@ -86,7 +86,9 @@ public class ChartTests
         {
             Assert.Contains($"data-series=\"benchmark:{method}\"", svg, StringComparison.Ordinal);
         }
-        Assert.Equal(4, System.Text.RegularExpressions.Regex.Count(svg, "visibility=\"hidden\""));
+        // The four others are hidden: their lines and their legend entries (each in a hidden group of its own key).
+        var hiddenKeys = System.Text.RegularExpressions.Regex.Matches(svg, "data-series=\"([^\"]+)\" visibility=\"hidden\"").Select(m => m.Groups[1].Value).Distinct().Order().ToList();
+        Assert.Equal(["benchmark:damped", "benchmark:drift", "benchmark:mean", "benchmark:ses"], hiddenKeys);
         // The PDF drawing has only what is shown.
         Assert.DoesNotContain(chart.Layout(640, 260).OfType<PolylineShape>(), l => l.Colour == BenchmarkReport.ColourOf("drift"));
     }

@@ -1,0 +1,93 @@
+using System.Net;
+using System.Text.RegularExpressions;
+using Microsoft.EntityFrameworkCore;
+using PanelRound.Data.Entities;
+using PanelRound.Web.Tests.Defects;
+using PanelRound.Web.Tests.Infrastructure;
+
+namespace PanelRound.Web.Tests.Reports;
+
+/// <summary>
+/// The reviewer's screens on the demo: settings and methods in words (never an identifier of the code), no negative
+/// zero, a chart for screens and one for phones, and one identifier scheme per table, explained.
+/// </summary>
+public abstract partial class ResultsPageTests(IDatabaseFixture fixture) : ProviderTests(fixture)
+{
+    /// <summary>Identifiers of settings and methods as the code and the API name them; a page writes them in words.</summary>
+    private static readonly string[] Identifiers =
+    [
+        "TukeyFences", "SymmetricTrim", "ModifiedZScore", "TrimmedMedian", "WeightedTrimmedMedian", "QuantileAverage",
+        "WeightedQuantileAverage", "CalibrationWeightedPool", "CalibrationWeightedMedian", "TrackRecord", "weighting Equal",
+    ];
+
+    [SkippableFact]
+    public async Task ResultsPage_EveryDemoPanel_WordsNotIdentifiers_NoNegativeZero_ChartsForScreenAndPhone()
+    {
+        var app = await StartDemoAsync();
+        var reviewer = await StaffCookieClient.SignedInAsync(app, Roles.Reviewer);
+        var panels = await app.WithDbAsync(db => db.Panels.AsNoTracking().Select(p => new { p.Id, p.State }).ToListAsync());
+        Assert.Contains(panels, p => p.State == PanelState.Running);
+        Assert.Contains(panels, p => p.State == PanelState.Concluded);
+
+        foreach (var panel in panels)
+        {
+            var response = await reviewer.GetAsync($"/Staff/Panels/Results/{panel.Id}");
+            Assert.Equal(HttpStatusCode.OK, response.StatusCode);
+            var html = await response.Content.ReadAsStringAsync();
+            var text = WebUtility.HtmlDecode(Tags().Replace(html, " "));
+            foreach (var id in Identifiers)
+            {
+                Assert.False(text.Contains(id, StringComparison.Ordinal), $"Panel {panel.Id}: the page shows \"{id}\".");
+            }
+            Assert.DoesNotMatch(NegativeZero(), text);
+            Assert.Contains("Tukey fences", text, StringComparison.Ordinal);
+            if (panel.State == PanelState.Concluded)
+            {
+                Assert.Contains("trimmed median", text, StringComparison.Ordinal);
+            }
+            // Every question's chart comes as a wide and a phone drawing; the histograms sit in the grid that gives them room.
+            var charts = Regex.Count(html, "class=\"chart-wide\"");
+            Assert.True(charts > 0, $"Panel {panel.Id}: no chart.");
+            Assert.Equal(charts, Regex.Count(html, "class=\"chart-narrow\""));
+            Assert.Contains("class=\"histogram-grid\"", html, StringComparison.Ordinal);
+            Assert.Contains("id=\"identifier-note\"", html, StringComparison.Ordinal);
+        }
+    }
+
+    [SkippableFact]
+    public async Task ScorecardPage_ExpertsByRosterName_TheOtherIdentifiersExplainedNotMixedIn()
+    {
+        var app = await StartDemoAsync();
+        var reviewer = await StaffCookieClient.SignedInAsync(app, Roles.Reviewer);
+        var experts = await app.WithDbAsync(db => db.Experts.AsNoTracking().Where(e => e.ExternalKey != null).Select(e => new { e.Name, e.ExternalKey }).ToListAsync());
+        Assert.NotEmpty(experts);
+
+        var html = await reviewer.GetStringAsync("/Staff/Scorecard");
+        Assert.Contains("id=\"identifier-note\"", html, StringComparison.Ordinal);
+        var table = Table().Match(html);
+        Assert.True(table.Success, "The scorecard has no experts table (id=\"scorecard-experts\").");
+        var body = table.Groups[1].Value;
+        Assert.Contains("Expert (roster name)", table.Value, StringComparison.Ordinal);
+        // The table body names experts by roster name only: no external key beside them.
+        Assert.Contains(experts, e => body.Contains(WebUtility.HtmlEncode(e.Name), StringComparison.Ordinal));
+        Assert.All(experts, e => Assert.DoesNotContain(">" + e.ExternalKey + "<", body, StringComparison.Ordinal));
+        Assert.All(experts, e => Assert.DoesNotContain(" " + e.ExternalKey + "<", body, StringComparison.Ordinal));
+        Assert.Contains("class=\"table table-sm table-striped align-middle sortable\"", html, StringComparison.Ordinal);
+    }
+
+    [GeneratedRegex("<[^>]*>")]
+    private static partial Regex Tags();
+
+    /// <summary>A minus before a zero that is the whole number: "-0", "-0.0", "-0.00" (not "-0.01", not "2019-09").</summary>
+    [GeneratedRegex(@"(?<![\w.])-0(\.0+)?(?![\d.])")]
+    private static partial Regex NegativeZero();
+
+    [GeneratedRegex("<table[^>]*id=\"scorecard-experts\"[^>]*>.*?<tbody>(.*?)</tbody>", RegexOptions.Singleline)]
+    private static partial Regex Table();
+}
+
+[Collection(SqliteCollection.Name)]
+public sealed class SqliteResultsPageTests(SqliteFixture fixture) : ResultsPageTests(fixture);
+
+[Collection(PostgresCollection.Name)]
+public sealed class PostgresResultsPageTests(PostgresFixture fixture) : ResultsPageTests(fixture);
