@@ -221,7 +221,8 @@
       return response.json().catch(function () { return null; }).then(function (json) {
         if (response.ok) {
           var at = json && json.at ? new Date(json.at) : new Date();
-          say('Draft saved ' + at.toLocaleTimeString([], { hour: 'numeric', minute: '2-digit' }) + '. It counts once you submit.');
+          // Short enough to sit beside the buttons on a phone; the page says above them that only submitted answers count.
+          say('Draft saved ' + at.toLocaleTimeString([], { hour: 'numeric', minute: '2-digit' }));
         } else {
           say('Draft not saved: ' + firstProblem(json));
         }
@@ -243,6 +244,7 @@
   }
 
   if (autosave) {
+    document.querySelectorAll('.autosave-note').forEach(function (el) { el.classList.remove('d-none'); });
     form.addEventListener('input', changed);
     form.addEventListener('change', function (e) { if (e.target !== decimals) changed(); });
     document.addEventListener('visibilitychange', function () { if (document.visibilityState === 'hidden') save(true); });
