@@ -11,14 +11,27 @@ namespace PanelRound.Web.Infrastructure;
 /// </summary>
 public static class SvgChart
 {
-    private const int W = 640, H = 220, L = 56, R = 12, T = 12, B = 28;
+    private const int B = 28;
+
+    /// <summary>The drawing's own size (its viewBox) and its font size: text renders at FontSize × the shown width / Width.</summary>
+    public sealed record ChartSize(int Width, int Height, int FontSize);
+
+    /// <summary>The default line chart, shown about 640 to 720 pixels wide.</summary>
+    public static readonly ChartSize Wide = new(640, 220, 10);
+
+    /// <summary>A line chart drawn for a phone (shown about 320 to 360 pixels wide), so that its text stays readable there.</summary>
+    public static readonly ChartSize Narrow = new(340, 240, 12);
 
     public sealed record Band(string Label, double Low, double Mid, double High);
 
     public sealed record Line(string Name, string Colour, IReadOnlyList<(string X, double? Y)> Points, bool Dashed = false);
 
-    /// <summary>Lines over shared x labels, with optional bands (low-high shaded, mid as a dot).</summary>
-    public static HtmlString Lines(IReadOnlyList<string> xs, IReadOnlyList<Line> lines, IReadOnlyList<(string Colour, IReadOnlyList<Band> Bands)>? bands = null, string? title = null, int decimals = 0)
+    /// <summary>
+    /// Lines over shared x labels, with optional bands (low-high shaded, mid as a dot), drawn at
+    /// <c>size</c> (default <see cref="Wide"/>): x labels are thinned and the legend wrapped to fit it.
+    /// Numbers are written by <c>format</c> when given, else with <c>decimals</c> in the invariant culture.
+    /// </summary>
+    public static HtmlString Lines(IReadOnlyList<string> xs, IReadOnlyList<Line> lines, IReadOnlyList<(string Colour, IReadOnlyList<Band> Bands)>? bands = null, string? title = null, int decimals = 0, ChartSize? size = null, Func<double, string>? format = null)
     {
         var values = lines.SelectMany(l => l.Points.Where(p => p.Y.HasValue).Select(p => p.Y!.Value))
             .Concat(bands?.SelectMany(b => b.Bands.SelectMany(x => new[] { x.Low, x.High })) ?? []).ToList();
@@ -26,15 +39,28 @@ public static class SvgChart
         {
             return new HtmlString("<p class=\"text-muted small\">No data to chart.</p>");
         }
+        var s = size ?? Wide;
+        var (w, h, font) = (s.Width, s.Height, s.FontSize);
+        string F(double v, int d) => format is null ? SvgChart.F(v, d) : format(v);
         var (min, max) = Pad(values.Min(), values.Max());
-        double X(int i) => L + (xs.Count == 1 ? (W - L - R) / 2.0 : i * (W - L - R) / (double)(xs.Count - 1));
-        double Y(double v) => T + (max - v) / (max - min) * (H - T - B);
-        var sb = Start(title);
-        Axes(sb, min, max, decimals, Y);
-        var step = Math.Max(1, xs.Count / 12);
+        // The left margin holds the longest y label; the legend rows sit above the plot, not over it.
+        var yLabels = Enumerable.Range(0, 5).Select(k => F(min + k * (max - min) / 4, decimals)).ToList();
+        var left = (int)Math.Ceiling(yLabels.Max(y => y.Length) * font * 0.62) + 8;
+        // The right margin holds half of the last x label, centred on the last point.
+        var labelWidth = xs.Max(x => x.Length) * font * 0.62 + font;
+        var right = Math.Max(12, (int)Math.Ceiling(labelWidth / 2));
+        var legend = LegendLayout(lines.Select(x => (x.Name, x.Colour)).ToList(), left, w - right, font);
+        var t = 8 + legend.Rows * (font + 4);
+        double X(int i) => left + (xs.Count == 1 ? (w - left - right) / 2.0 : i * (w - left - right) / (double)(xs.Count - 1));
+        double Y(double v) => t + (max - v) / (max - min) * (h - t - B);
+        var sb = Start(title, w, h);
+        Axes(sb, min, max, yLabels, Y, left, w - right, font);
+        // As many x labels as fit side by side at this size.
+        var fit = Math.Max(1, (int)((w - left - right) / labelWidth) + 1);
+        var step = Math.Max(1, (int)Math.Ceiling(xs.Count / (double)fit));
         for (var i = 0; i < xs.Count; i += step)
         {
-            sb.Append(Inv($"<text x=\"{X(i):0.#}\" y=\"{H - 8}\" font-size=\"10\" text-anchor=\"middle\" fill=\"#555\">{Esc(xs[i])}</text>"));
+            sb.Append(Inv($"<text x=\"{X(i):0.#}\" y=\"{h - 8}\" font-size=\"{font}\" text-anchor=\"middle\" fill=\"#555\">{Esc(xs[i])}</text>"));
         }
         foreach (var (colour, list) in bands ?? [])
         {
@@ -63,18 +89,28 @@ public static class SvgChart
                 sb.Append(Inv($"<circle cx=\"{X(p.i):0.#}\" cy=\"{Y(p.Y!.Value):0.#}\" r=\"2.5\" fill=\"{line.Colour}\"><title>{Esc(line.Name)} {Esc(xs[p.i])}: {F(p.Y.Value, decimals)}</title></circle>"));
             }
         }
-        Legend(sb, lines.Select(l => (l.Name, l.Colour)).ToList());
+        foreach (var (name, colour, x, y) in legend.Items)
+        {
+            sb.Append(Inv($"<rect x=\"{x:0.#}\" y=\"{y - font / 2.0:0.#}\" width=\"10\" height=\"3\" fill=\"{colour}\"/><text x=\"{x + 14:0.#}\" y=\"{y:0.#}\" font-size=\"{font}\" fill=\"#333\">{Esc(name)}</text>"));
+        }
         return End(sb);
     }
 
-    /// <summary>A histogram of round feedback (bins with counts).</summary>
-    public static HtmlString Histogram(IReadOnlyList<(double Lower, double Upper, int Count)> bins, int decimals = 0, double? marker = null, string? markerLabel = null)
+    /// <summary>A histogram of round feedback (bins with counts), drawn 240 wide with 11-pixel text (readable at its shown width, in a table cell or on a phone).</summary>
+    /// <param name="bins">The bars, lowest first.</param>
+    /// <param name="decimals">Decimals of the axis numbers.</param>
+    /// <param name="marker">A value marked with a red line (e.g. the reader's own answer), when inside the bars.</param>
+    /// <param name="markerLabel">What the marker is.</param>
+    /// <param name="title">What the histogram shows; with the bars' ranges and counts it is the chart's text alternative.</param>
+    /// <param name="format">Writes a number (default: <paramref name="decimals"/> decimals, invariant culture).</param>
+    public static HtmlString Histogram(IReadOnlyList<(double Lower, double Upper, int Count)> bins, int decimals = 0, double? marker = null, string? markerLabel = null, string? title = null, Func<double, string>? format = null)
     {
+        string F(double v, int d) => format is null ? SvgChart.F(v, d) : format(v);
         if (bins.Count == 0)
         {
             return new HtmlString("");
         }
-        const int w = 300, h = 110, l = 8, r = 8, t = 8, b = 22;
+        const int w = 240, h = 84, l = 6, r = 6, t = 6, b = 20, font = 11;
         var maxCount = Math.Max(1, bins.Max(x => x.Count));
         var lo = bins[0].Lower;
         var hi = bins[^1].Upper;
@@ -83,7 +119,12 @@ public static class SvgChart
             hi = lo + 1;
         }
         double X(double v) => l + (v - lo) / (hi - lo) * (w - l - r);
-        var sb = new StringBuilder(Inv($"<svg viewBox=\"0 0 {w} {h}\" role=\"img\" class=\"chart\" xmlns=\"http://www.w3.org/2000/svg\">"));
+        var shown = marker is { } mk && mk >= lo && mk <= hi;
+        var description = (title ?? "Histogram") + ": "
+            + string.Join("; ", bins.Select(x => $"{F(x.Lower, decimals)} to {F(x.Upper, decimals)}: {x.Count.ToString(CultureInfo.InvariantCulture)}"))
+            + (shown ? $"; {markerLabel ?? "marker"}: {F(marker!.Value, decimals)}" : "");
+        var sb = new StringBuilder(Inv($"<svg viewBox=\"0 0 {w} {h}\" role=\"img\" aria-label=\"{Esc(description)}\" class=\"chart histogram\" xmlns=\"http://www.w3.org/2000/svg\">"));
+        sb.Append("<title>").Append(Esc(description)).Append("</title>");
         foreach (var bin in bins)
         {
             var x1 = X(bin.Lower);
@@ -91,18 +132,19 @@ public static class SvgChart
             var bh = bin.Count / (double)maxCount * (h - t - b);
             sb.Append(Inv($"<rect x=\"{x1:0.#}\" y=\"{h - b - bh:0.#}\" width=\"{Math.Max(1, x2 - x1 - 1):0.#}\" height=\"{bh:0.#}\" fill=\"#6c8ebf\"><title>{F(bin.Lower, decimals)} to {F(bin.Upper, decimals)}: {bin.Count}</title></rect>"));
         }
-        sb.Append(Inv($"<text x=\"{l}\" y=\"{h - 6}\" font-size=\"10\" fill=\"#555\">{F(lo, decimals)}</text><text x=\"{w - r}\" y=\"{h - 6}\" font-size=\"10\" text-anchor=\"end\" fill=\"#555\">{F(hi, decimals)}</text>"));
-        if (marker is { } m && m >= lo && m <= hi)
+        sb.Append(Inv($"<text x=\"{l}\" y=\"{h - 5}\" font-size=\"{font}\" fill=\"#444\">{F(lo, decimals)}</text><text x=\"{w - r}\" y=\"{h - 5}\" font-size=\"{font}\" text-anchor=\"end\" fill=\"#444\">{F(hi, decimals)}</text>"));
+        if (shown)
         {
+            var m = marker!.Value;
             sb.Append(Inv($"<line x1=\"{X(m):0.#}\" x2=\"{X(m):0.#}\" y1=\"{t}\" y2=\"{h - b}\" stroke=\"#c0392b\" stroke-width=\"2\"><title>{Esc(markerLabel ?? "")}: {F(m, decimals)}</title></line>"));
         }
         sb.Append("</svg>");
         return new HtmlString(sb.ToString());
     }
 
-    private static StringBuilder Start(string? title)
+    private static StringBuilder Start(string? title, int w, int h)
     {
-        var sb = new StringBuilder(Inv($"<svg viewBox=\"0 0 {W} {H}\" role=\"img\" class=\"chart\" xmlns=\"http://www.w3.org/2000/svg\">"));
+        var sb = new StringBuilder(Inv($"<svg viewBox=\"0 0 {w} {h}\" role=\"img\" class=\"chart\" xmlns=\"http://www.w3.org/2000/svg\">"));
         if (title is not null)
         {
             sb.Append("<title>").Append(Esc(title)).Append("</title>");
@@ -112,24 +154,34 @@ public static class SvgChart
 
     private static HtmlString End(StringBuilder sb) => new(sb.Append("</svg>").ToString());
 
-    private static void Axes(StringBuilder sb, double min, double max, int decimals, Func<double, double> y)
+    private static void Axes(StringBuilder sb, double min, double max, IReadOnlyList<string> labels, Func<double, double> y, int l, int right, int font)
     {
         for (var k = 0; k <= 4; k++)
         {
             var v = min + k * (max - min) / 4;
-            sb.Append(Inv($"<line x1=\"{L}\" x2=\"{W - R}\" y1=\"{y(v):0.#}\" y2=\"{y(v):0.#}\" stroke=\"#e3e3e3\"/>"));
-            sb.Append(Inv($"<text x=\"{L - 4}\" y=\"{y(v) + 3:0.#}\" font-size=\"10\" text-anchor=\"end\" fill=\"#555\">{F(v, decimals)}</text>"));
+            sb.Append(Inv($"<line x1=\"{l}\" x2=\"{right}\" y1=\"{y(v):0.#}\" y2=\"{y(v):0.#}\" stroke=\"#e3e3e3\"/>"));
+            sb.Append(Inv($"<text x=\"{l - 4}\" y=\"{y(v) + font * 0.35:0.#}\" font-size=\"{font}\" text-anchor=\"end\" fill=\"#555\">{labels[k]}</text>"));
         }
     }
 
-    private static void Legend(StringBuilder sb, IReadOnlyList<(string Name, string Colour)> items)
+    /// <summary>Legend items placed left to right from <paramref name="left"/>, wrapped onto a new row where one would pass <paramref name="right"/>.</summary>
+    private static (int Rows, List<(string Name, string Colour, double X, double Y)> Items) LegendLayout(IReadOnlyList<(string Name, string Colour)> items, int left, int right, int font)
     {
-        var x = L + 4.0;
+        var placed = new List<(string, string, double, double)>();
+        var x = (double)left;
+        var row = 0;
         foreach (var (name, colour) in items)
         {
-            sb.Append(Inv($"<rect x=\"{x:0.#}\" y=\"{T}\" width=\"10\" height=\"3\" fill=\"{colour}\"/><text x=\"{x + 14:0.#}\" y=\"{T + 5}\" font-size=\"10\" fill=\"#333\">{Esc(name)}</text>"));
-            x += 24 + name.Length * 5.5;
+            var width = 14 + name.Length * font * 0.55;
+            if (x > left && x + width > right)
+            {
+                row++;
+                x = left;
+            }
+            placed.Add((name, colour, x, 8 + font * 0.8 + row * (font + 4)));
+            x += width + 10;
         }
+        return (items.Count == 0 ? 0 : row + 1, placed);
     }
 
     private static (double, double) Pad(double min, double max)

@@ -46,14 +46,14 @@ public abstract class AnswerPageErrorsTests(IDatabaseFixture fixture) : Provider
         // A confidence the form cannot bind is not sent to the submission rules.
         var unreadable = await client.PostAsync("/expert", Form(p, token, "high", "2"));
         Assert.Equal(HttpStatusCode.OK, unreadable.StatusCode);
-        Assert.Contains("<div class=\"text-danger small\">Not a valid choice.</div>", await unreadable.Content.ReadAsStringAsync(), StringComparison.Ordinal);
+        Assert.Contains("<div class=\"text-danger small\" id=\"conf-0-error\">Not a valid choice.</div>", await unreadable.Content.ReadAsStringAsync(), StringComparison.Ordinal);
 
         // The submission's own rules: confidence out of range, a period left empty.
         var refused = await client.PostAsync("/expert", Form(p, token, "9", ""));
         Assert.Equal(HttpStatusCode.OK, refused.StatusCode);
         var html = await refused.Content.ReadAsStringAsync();
-        Assert.Contains("<div class=\"text-danger small\">Confidence is 1 (low) to 5 (high).</div>", html, StringComparison.Ordinal);
-        Assert.Contains($"<div class=\"invalid-feedback d-block\">{p.Periods[1]}: a value is required.</div>", html, StringComparison.Ordinal);
+        Assert.Contains("<div class=\"text-danger small\" id=\"conf-0-error\">Confidence is 1 (low) to 5 (high).</div>", html, StringComparison.Ordinal);
+        Assert.Contains($"<div class=\"invalid-feedback d-block\" id=\"a0-p1-value-error\">{p.Periods[1]}: a value is required.</div>", html, StringComparison.Ordinal);
         Assert.Equal(0, await app.WithDbAsync(db => db.Estimates.CountAsync()));
     }
 

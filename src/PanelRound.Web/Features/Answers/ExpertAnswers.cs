@@ -64,10 +64,49 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
                 q.HardMin, q.HardMax, q.PlausibleMin, q.PlausibleMax, reference, periods, rationales, latest?.Confidence, latest?.Rationale));
         }
         var lastSubmit = currentRows.Where(e => !e.IsDraft).Select(e => (DateTime?)e.CreatedAt).Max();
+        var contact = string.IsNullOrWhiteSpace(panel.ContactName) && string.IsNullOrWhiteSpace(panel.ContactEmail)
+            ? null
+            : new PanelContact(NullIfBlank(panel.ContactName), NullIfBlank(panel.ContactEmail));
+        var (consensusRound, consensus) = panel.State == PanelState.Concluded ? await ConsensusAsync(panel, own) : (null, []);
         return new ExpertForm(panel.Id, m.Id, m.PanelCode, panel.Title, Markdown.ToSafeHtml(panel.Brief), panel.State,
             round is null ? null : new RoundInfo(round.Number, round.OpensAt, round.ClosesAt, canAnswer),
-            canAnswer, reason, feedbackRound?.Number, panel.Settings.OutliersMustJustify, lastSubmit, questions);
+            canAnswer, reason, feedbackRound?.Number, panel.Settings.OutliersMustJustify, lastSubmit, questions,
+            Now, contact, consensusRound, consensus);
     }
+
+    /// <summary>
+    /// A concluded panel's published consensus, per question-period in the questions' order, beside
+    /// the expert's own answer counted in the final round (the latest submitted, not a draft). A
+    /// period with fewer answers than the panel's minimum group size shows no number; its band only
+    /// from as many answers as the group's spread needs (a band of few answers gives them away).
+    /// </summary>
+    private async Task<(int? Round, IReadOnlyList<ExpertConsensus> Entries)> ConsensusAsync(Panel panel, List<Estimate> own)
+    {
+        var finalRound = panel.Rounds.Where(r => r.State == RoundState.Closed).MaxBy(r => r.Number);
+        var published = await db.Consensus.AsNoTracking().Where(c => c.PanelId == panel.Id).ToListAsync();
+        var finalOwn = finalRound is null ? [] : own.Where(e => e.RoundId == finalRound.Id && !e.IsDraft).ToList();
+        var entries = new List<ExpertConsensus>();
+        foreach (var q in panel.Questions.OrderBy(q => q.Order))
+        {
+            foreach (var period in q.TargetPeriods.Split(','))
+            {
+                // A consensus published again (another weighting) replaces the earlier one: the latest row counts.
+                if (published.Where(c => c.QuestionId == q.Id && c.Period == period).MaxBy(c => c.Id) is not { } c)
+                {
+                    continue;
+                }
+                var mine = Values(finalOwn.Where(e => e.QuestionId == q.Id && e.Period == period).MaxBy(e => e.Id));
+                var minimum = Math.Max(3, panel.Settings.MinimumGroupSize);
+                var withheld = c.N < minimum;
+                var bandWithheld = withheld || c.N < Core.Statistics.AnonymousFeedback.MinimumForSpread;
+                entries.Add(new ExpertConsensus(q.Id, period, c.N, minimum, withheld, withheld ? null : c.Value,
+                    bandWithheld, bandWithheld ? null : c.Low, bandWithheld ? null : c.High, mine));
+            }
+        }
+        return (finalRound?.Number, entries);
+    }
+
+    private static string? NullIfBlank(string? text) => string.IsNullOrWhiteSpace(text) ? null : text.Trim();
 
     private (Round? Round, bool CanAnswer, string? Reason) Status(Panel panel)
     {

@@ -1,9 +1,12 @@
 using System.Globalization;
+using System.Text;
+using System.Text.RegularExpressions;
 using Microsoft.AspNetCore.Mvc;
 using Microsoft.AspNetCore.Mvc.RazorPages;
 using Microsoft.EntityFrameworkCore;
 using PanelRound.Core.Domain;
 using PanelRound.Data;
+using PanelRound.Data.Entities;
 using PanelRound.Web.Features.Answers;
 using PanelRound.Web.Features.Benchmarks;
 using PanelRound.Web.Features.Relations;
@@ -12,7 +15,7 @@ using PanelRound.Web.Infrastructure;
 namespace PanelRound.Web.Pages.Answer;
 
 /// <summary>The expert's page behind the personal link's cookie: the brief, the questions, feedback and the answer form.</summary>
-public class IndexModel(PanelRoundDbContext db, ExpertAnswers answers, ExpertBenchmarkLine benchmarkLine, PanelRelations relations) : PageModel
+public partial class IndexModel(PanelRoundDbContext db, ExpertAnswers answers, ExpertBenchmarkLine benchmarkLine, PanelRelations relations) : PageModel
 {
     /// <summary>One period's inputs as typed: numbers are read by <see cref="Numbers.TryParseEntry"/> with the chosen separator, never by the server's culture.</summary>
     public sealed class PeriodForm
@@ -227,10 +230,121 @@ public class IndexModel(PanelRoundDbContext db, ExpertAnswers answers, ExpertBen
         return bars;
     }
 
-    /// <summary>A number as the expert types it: full precision, no grouping, with their decimal separator.</summary>
-    public string Typed(double? value)
+    /// <summary>
+    /// A number as the expert types it: full precision, thousands grouped by spaces, with their
+    /// decimal separator ("5 159.9" or "5 159,9"); the page's reading rule takes it back unchanged.
+    /// </summary>
+    public string Typed(double? value) => TypedText(value, Separator);
+
+    /// <summary>See <see cref="Typed"/>; exponent forms (beyond the grouping) are left ungrouped.</summary>
+    public static string TypedText(double? value, DecimalSeparator separator)
     {
         var text = PageSupport.Raw(value);
+        if (text.Length == 0 || text.Contains('E', StringComparison.OrdinalIgnoreCase))
+        {
+            return separator == DecimalSeparator.Comma ? text.Replace('.', ',') : text;
+        }
+        var sign = text.StartsWith('-') ? "-" : "";
+        var body = text.TrimStart('-');
+        var point = body.IndexOf('.', StringComparison.Ordinal);
+        var whole = point < 0 ? body : body[..point];
+        var fraction = point < 0 ? "" : (separator == DecimalSeparator.Comma ? "," : ".") + body[(point + 1)..];
+        return sign + Group(whole, ' ') + fraction;
+    }
+
+    private static string Group(string digits, char mark)
+    {
+        var sb = new StringBuilder();
+        for (var i = 0; i < digits.Length; i++)
+        {
+            if (i > 0 && (digits.Length - i) % 3 == 0)
+            {
+                sb.Append(mark);
+            }
+            sb.Append(digits[i]);
+        }
+        return sb.ToString();
+    }
+
+    /// <summary>
+    /// A number for reading on this page, with the indicator's decimals: thousands grouped by a
+    /// narrow no-break space and the expert's decimal separator, so that neither mark can be
+    /// taken for the other ("5 340", "8.06" or "8,06").
+    /// </summary>
+    public string Num(double? value, int decimals)
+    {
+        var text = NumberText.Fixed(value, decimals);
+        if (text == NumberText.Missing)
+        {
+            return text;
+        }
+        text = text.Replace(',', '\u202F');
         return Separator == DecimalSeparator.Comma ? text.Replace('.', ',') : text;
     }
+
+    /// <summary>The id of an answer field on the page (<c>a0-p1-value</c>, <c>a1-p0-p10</c>), the target of the error summary's links.</summary>
+    public static string FieldId(int qi, int pi, string name) => $"a{qi}-p{pi}-{name.ToLowerInvariant()}";
+
+    /// <summary>A deadline in UTC as the page writes it, e.g. "Dec 14, 2026, 17:00 UTC".</summary>
+    public static string UtcText(DateTime at) => at.ToString("MMM d, yyyy, HH:mm", CultureInfo.InvariantCulture) + " UTC";
+
+    /// <summary>How long the open round has left, from the app's clock when the form was read ("11 days 23 hours").</summary>
+    public string TimeLeft => Form.Round is { } r ? TimeLeftText.Describe(r.ClosesAt - Form.AsOf) : "";
+
+    /// <summary>One line of the error summary: the text and the id of the field it links to.</summary>
+    public sealed record SummaryLine(string Text, string Target);
+
+    /// <summary>
+    /// Every error of a refused submission, in the page's order, each linking to its field (an
+    /// error of a whole question links to its first field; one of the whole form to the form).
+    /// </summary>
+    public IReadOnlyList<SummaryLine> ErrorSummary()
+    {
+        var lines = new List<(int Q, int P, int F, SummaryLine Line)>();
+        foreach (var (key, entry) in ModelState)
+        {
+            if (entry.Errors.Count == 0 || key.Length == 0 || key.Equals(nameof(FormKey), StringComparison.OrdinalIgnoreCase))
+            {
+                continue;
+            }
+            var message = string.Join(" ", entry.Errors.Select(e => e.ErrorMessage));
+            var m = FieldKey().Match(key);
+            if (!m.Success || !int.TryParse(m.Groups["q"].Value, CultureInfo.InvariantCulture, out var qi) || qi >= Form.Questions.Count)
+            {
+                lines.Add((int.MaxValue, 0, 0, new SummaryLine(message, "answers-form")));
+                continue;
+            }
+            var q = Form.Questions[qi];
+            var field = m.Groups["f"].Value.ToLowerInvariant();
+            if (m.Groups["p"].Success && int.TryParse(m.Groups["p"].Value, CultureInfo.InvariantCulture, out var pi) && pi < q.Periods.Count
+                && field is "value" or "p10" or "p50" or "p90")
+            {
+                var period = q.Periods[pi].Period;
+                var name = field == "value" ? "" : ", " + field.ToUpperInvariant();
+                // The message names the period itself ("2028: a value is required."): said once, in the field's name.
+                var said = PeriodPrefix().Replace(message, "");
+                lines.Add((qi, pi, Array.IndexOf(FieldOrder, field), new SummaryLine($"{q.Label}, {period}{name}: {said}", FieldId(qi, pi, field))));
+                continue;
+            }
+            var target = field switch
+            {
+                "confidence" => $"conf-{qi}",
+                "rationale" => $"rat-{qi}",
+                _ => q.Periods.Count > 0 ? FieldId(qi, 0, q.Format == ResponseFormat.Range ? "p10" : "value") : "answers-form",
+            };
+            lines.Add((qi, field == "rationale" ? int.MaxValue : field == "confidence" ? int.MaxValue - 1 : -1, 0, new SummaryLine($"{q.Label}: {message}", target)));
+        }
+        return [.. lines.OrderBy(x => x.Q).ThenBy(x => x.P).ThenBy(x => x.F).Select(x => x.Line)];
+    }
+
+    private static readonly string[] FieldOrder = ["value", "p10", "p50", "p90"];
+
+    /// <summary>The ids the fields of an answer input are described by: its reading (live), and its error when it has one.</summary>
+    public string DescribedBy(string id, string? error) => error is null ? $"{id}-echo" : $"{id}-echo {id}-error";
+
+    [GeneratedRegex(@"^answers\[(?<q>\d+)\](?:\.periods(?:\[(?<p>\d+)\](?:\.(?<f>\w+))?)?|\.(?<f>\w+))?$", RegexOptions.IgnoreCase | RegexOptions.CultureInvariant)]
+    private static partial Regex FieldKey();
+
+    [GeneratedRegex(@"^\d{4}(?:Q\d)?(?: P\d0)?: ", RegexOptions.CultureInvariant)]
+    private static partial Regex PeriodPrefix();
 }

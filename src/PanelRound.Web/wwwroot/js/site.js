@@ -5,20 +5,6 @@ document.querySelectorAll('time.local').forEach(function (t) {
     t.textContent = d.toLocaleString(undefined, { dateStyle: 'medium', timeStyle: 'short' }) + ' (your time)';
   }
 });
-// Asks "are you sure?" before saving values outside a question's plausible range.
-document.querySelectorAll('form[data-plausible-check]').forEach(function (form) {
-  form.addEventListener('submit', function (e) {
-    var outside = [];
-    form.querySelectorAll('input[data-plausible-min], input[data-plausible-max]').forEach(function (i) {
-      if (i.value === '') return;
-      var v = parseFloat(i.value), lo = parseFloat(i.dataset.plausibleMin), hi = parseFloat(i.dataset.plausibleMax);
-      if ((!isNaN(lo) && v < lo) || (!isNaN(hi) && v > hi)) outside.push(i.dataset.label + ': ' + i.value);
-    });
-    if (outside.length > 0 && !window.confirm('These values are outside the plausible range:\n' + outside.join('\n') + '\n\nAre you sure?')) {
-      e.preventDefault();
-    }
-  });
-});
 // Asks before an irreversible action: <button data-confirm="Question?">.
 document.querySelectorAll('[data-confirm]').forEach(function (el) {
   el.addEventListener('click', function (e) {
