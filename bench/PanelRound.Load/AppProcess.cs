@@ -8,7 +8,10 @@ namespace PanelRound.Load;
 /// The web app as a separate process (the published or built <c>PanelRound.Web.dll</c>) on PostgreSQL,
 /// so that it can be killed with SIGKILL and started again on the same database.
 /// </summary>
-internal sealed class AppProcess(string appDll, string connectionString) : IAsyncDisposable
+/// <param name="appDll">The app.</param>
+/// <param name="connectionString">Its PostgreSQL connection string.</param>
+/// <param name="environment">Environment variables that replace the defaults below (e.g. another provider, the demo on).</param>
+internal sealed class AppProcess(string appDll, string connectionString, IReadOnlyDictionary<string, string>? environment = null) : IAsyncDisposable
 {
     private Process? _process;
 
@@ -33,6 +36,10 @@ internal sealed class AppProcess(string appDll, string connectionString) : IAsyn
         psi.Environment["ConnectionStrings__Postgres"] = connectionString;
         psi.Environment["RateLimits__Enabled"] = "false";
         psi.Environment["Logging__LogLevel__Default"] = "Warning";
+        foreach (var (name, value) in environment ?? new Dictionary<string, string>())
+        {
+            psi.Environment[name] = value;
+        }
         return psi;
     }
 

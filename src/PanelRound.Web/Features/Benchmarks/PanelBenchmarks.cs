@@ -1,8 +1,11 @@
+using System.Globalization;
 using Microsoft.EntityFrameworkCore;
 using PanelRound.Core.Domain;
 using PanelRound.Core.Forecasting;
 using PanelRound.Data;
+using PanelRound.Data.Entities;
 using PanelRound.Web.Features.Indicators;
+using PanelRound.Web.Features.Results;
 
 namespace PanelRound.Web.Features.Benchmarks;
 
@@ -62,8 +65,18 @@ public sealed class PanelBenchmarks(PanelRoundDbContext db)
         {
             return null;
         }
+        return Build(panel, await IndicatorCatalog.ReferenceSeriesAsync(db, panel.Questions.Select(q => q.IndicatorId).Distinct().ToList(), panel.StartsOn));
+    }
 
-        var references = await IndicatorCatalog.ReferenceSeriesAsync(db, panel.Questions.Select(q => q.IndicatorId).Distinct().ToList(), panel.StartsOn);
+    /// <summary>The benchmarks of a panel already read.</summary>
+    public PanelBenchmarksDto Build(PanelSnapshot snapshot)
+    {
+        ArgumentNullException.ThrowIfNull(snapshot);
+        return Build(snapshot.Panel, snapshot.References);
+    }
+
+    private static PanelBenchmarksDto Build(Panel panel, ILookup<int, SeriesPoint> references)
+    {
         var questions = panel.Questions.OrderBy(q => q.Order).Select(q =>
         {
             var reference = references[q.IndicatorId].ToList();
@@ -76,8 +89,20 @@ public sealed class PanelBenchmarks(PanelRoundDbContext db)
         return new PanelBenchmarksDto(panel.Id, panel.Settings.BenchmarkWindow, 0.8, MethodText, questions);
     }
 
+    /// <summary>Fitted benchmarks by their whole input (series, targets, window): fitting is pure and costs tens of milliseconds per page.</summary>
+    private static readonly InputKeyedCache<IReadOnlyList<BenchmarkDto>> Fitted = new(1024);
+
     /// <summary>The benchmarks of one question: pure, from its reference series and target periods; see the type's remarks.</summary>
     public static IReadOnlyList<BenchmarkDto> ForQuestion(IReadOnlyList<SeriesPoint> reference, IReadOnlyList<string> targets, int meanWindow)
+    {
+        ArgumentNullException.ThrowIfNull(reference);
+        ArgumentNullException.ThrowIfNull(targets);
+        var key = string.Create(CultureInfo.InvariantCulture,
+            $"{meanWindow}|{string.Join(',', targets)}|{string.Join(';', reference.Select(r => string.Create(CultureInfo.InvariantCulture, $"{r.Period}={r.Value:R}")))}");
+        return Fitted.GetOrAdd(key, () => Fit(reference, targets, meanWindow));
+    }
+
+    private static IReadOnlyList<BenchmarkDto> Fit(IReadOnlyList<SeriesPoint> reference, IReadOnlyList<string> targets, int meanWindow)
     {
         var (series, quarterly) = TrailingRun(reference);
         var options = new BenchmarkOptions { MeanWindow = Math.Clamp(meanWindow, 1, 40), SeasonalPeriod = quarterly ? 4 : 1 };

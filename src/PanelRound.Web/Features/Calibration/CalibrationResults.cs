@@ -148,23 +148,32 @@ public sealed class CalibrationResults(PanelRoundDbContext db, ScorecardService 
     }
 
     /// <summary>Equal, track-record and calibration-weighted consensus of the last closed round; null when no round has closed or there are no calibration questions.</summary>
-    public async Task<CalibrationComparison?> CompareAsync(int panelId, ConsensusComparison? known = null)
+    public async Task<CalibrationComparison?> CompareAsync(int panelId, ConsensusComparison? known = null) =>
+        await PanelSnapshot.LoadAsync(db, panelId) is { } snapshot ? await CompareAsync(snapshot, CalibrationScoring.Of(snapshot), known) : null;
+
+    /// <summary>The comparison of a panel already read, with its calibration data (<see cref="CalibrationScoring.Of"/>), so the classical model runs once for the figures and the weights.</summary>
+    public async Task<CalibrationComparison?> CompareAsync(PanelSnapshot snapshot, CalibrationData data, ConsensusComparison? known = null)
     {
-        var panel = await PanelAsync(panelId);
-        var last = panel?.Rounds.Where(r => r.State == RoundState.Closed).MaxBy(r => r.Number);
-        if (panel is null || last is null || !panel.Questions.Any(q => q.IsCalibration))
+        ArgumentNullException.ThrowIfNull(snapshot);
+        ArgumentNullException.ThrowIfNull(data);
+        var panel = snapshot.Panel;
+        var last = snapshot.LastClosedRound;
+        if (last is null || !panel.Questions.Any(q => q.IsCalibration))
         {
             return null;
         }
-        var equal = await publisher.ComputeAsync(panel, last, ConsensusWeighting.Equal);
-        var calibrated = (await publisher.ComputeAsync(panel, last, ConsensusWeighting.Calibration)).ToDictionary(c => (c.QuestionId, c.Period));
-        var track = (known ?? await scorecard.CompareAsync(panelId))?.Targets.ToDictionary(t => (t.QuestionId, t.Period));
+        // The weights of the consensus computed from the last closed round: the given data when it scores that round's answers.
+        var scored = data.Round?.Id == CalibrationScoring.ScoringRound(panel, last)?.Id ? data : CalibrationScoring.Of(snapshot, last);
+        var answers = snapshot.AnswersOf(last);
+        var equal = publisher.Compute(panel, answers, null, null);
+        var calibrated = publisher.Compute(panel, answers, null, CalibrationScoring.MembershipWeights(scored)).ToDictionary(c => (c.QuestionId, c.Period));
+        var track = (known ?? await scorecard.CompareAsync(snapshot))?.Targets.ToDictionary(t => (t.QuestionId, t.Period));
         var questions = panel.Questions.ToDictionary(q => q.Id);
         var targets = equal.Select(e => new CalibrationComparedTarget(
             e.QuestionId, questions[e.QuestionId].Label, e.Period, questions[e.QuestionId].Format.ToString(),
             questions[e.QuestionId].Indicator!.UnitLabel, questions[e.QuestionId].Indicator!.Decimals, ComparedValue.Of(e),
             track?.GetValueOrDefault((e.QuestionId, e.Period))?.TrackRecord, ComparedValue.Of(calibrated[(e.QuestionId, e.Period)]))).ToList();
-        return new CalibrationComparison(panelId, last.Number, panel.Settings.Weighting.ToString(), targets);
+        return new CalibrationComparison(panel.Id, last.Number, panel.Settings.Weighting.ToString(), targets);
     }
 
     /// <summary>The cross-validation; the training size defaults to half the questions, rounded up, and must be 1 to N − 1.</summary>

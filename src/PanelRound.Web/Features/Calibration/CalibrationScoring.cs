@@ -4,6 +4,7 @@ using PanelRound.Core.Calibration;
 using PanelRound.Core.Statistics;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
+using PanelRound.Web.Features.Results;
 using PanelRound.Web.Features.Rounds;
 
 namespace PanelRound.Web.Features.Calibration;
@@ -25,8 +26,23 @@ public sealed record CalibrationData(
 
     public static CalibrationSettings SettingsOf(PanelSettings s) => new(s.CalibrationOvershoot, s.CalibrationCutoff);
 
+    /// <summary>Results of the classical model by their whole input (settings, truths, assessments in order): it is pure and costs tens of milliseconds.</summary>
+    private static readonly InputKeyedCache<ClassicalModelResult> Evaluated = new(256);
+
     /// <summary>The classical model on the recorded truths; null when nothing can be scored yet.</summary>
-    public ClassicalModelResult? Evaluate() => Items.Count > 0 && Assessments.Count > 0 ? ClassicalModel.Evaluate(Items, Assessments, Settings) : null;
+    public ClassicalModelResult? Evaluate()
+    {
+        if (Items.Count == 0 || Assessments.Count == 0)
+        {
+            return null;
+        }
+        var settings = Settings;
+        var items = string.Join(';', Items.Select(i => string.Create(CultureInfo.InvariantCulture, $"{i.Key},{i.Truth:R},{i.Background}")));
+        var assessments = string.Join(';', Assessments.Select(a =>
+            string.Create(CultureInfo.InvariantCulture, $"{a.ExpertKey},{a.ItemKey},{a.Answer.P10:R},{a.Answer.P50:R},{a.Answer.P90:R}")));
+        var key = string.Create(CultureInfo.InvariantCulture, $"{settings.Overshoot:R}|{settings.Cutoff:R}|{items}|{assessments}");
+        return Evaluated.GetOrAdd(key, () => ClassicalModel.Evaluate(Items, Assessments, settings));
+    }
 }
 
 /// <summary>
@@ -57,6 +73,22 @@ public static class CalibrationScoring
         var round = ScoringRound(panel, final);
         var codes = await db.Memberships.AsNoTracking().Where(m => m.PanelId == panel.Id).ToDictionaryAsync(m => m.Id, m => m.PanelCode);
         var answers = questions.Count == 0 || round is null ? [] : await CountedAnswers.LoadAsync(db, round.Id);
+        return Build(panel, round, questions, codes, answers);
+    }
+
+    /// <summary>The data of a panel already read (see <see cref="LoadAsync"/>).</summary>
+    public static CalibrationData Of(PanelSnapshot snapshot, Round? final = null)
+    {
+        ArgumentNullException.ThrowIfNull(snapshot);
+        var panel = snapshot.Panel;
+        var questions = panel.Questions.Where(q => q.IsCalibration).OrderBy(q => q.Order).ToList();
+        var round = ScoringRound(panel, final);
+        return Build(panel, round, questions, snapshot.Codes, questions.Count == 0 || round is null ? [] : snapshot.AnswersOf(round));
+    }
+
+    private static CalibrationData Build(
+        Panel panel, Round? round, List<Question> questions, IReadOnlyDictionary<int, string> codes, IReadOnlyList<CountedAnswer> answers)
+    {
         var byQuestion = questions.ToDictionary(q => q.Id);
         var usable = answers
             .Where(a => byQuestion.TryGetValue(a.QuestionId, out var q) && a.Period == q.TargetPeriods && codes.ContainsKey(a.MembershipId))
@@ -79,9 +111,13 @@ public static class CalibrationScoring
     /// for a consensus computed from <paramref name="final"/>; null when no expert has a positive
     /// weight (no true value recorded, no answers, or nobody above a fixed cut-off).
     /// </summary>
-    public static async Task<IReadOnlyDictionary<int, double>?> MembershipWeightsAsync(PanelRoundDbContext db, Panel panel, Round final)
+    public static async Task<IReadOnlyDictionary<int, double>?> MembershipWeightsAsync(PanelRoundDbContext db, Panel panel, Round final) =>
+        MembershipWeights(await LoadAsync(db, panel, final));
+
+    /// <summary>The calibration-question weights of loaded data (see <see cref="MembershipWeightsAsync"/>).</summary>
+    public static IReadOnlyDictionary<int, double>? MembershipWeights(CalibrationData data)
     {
-        var data = await LoadAsync(db, panel, final);
+        ArgumentNullException.ThrowIfNull(data);
         if (data.Evaluate()?.Weights is not { } weights)
         {
             return null;

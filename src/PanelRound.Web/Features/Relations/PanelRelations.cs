@@ -165,13 +165,32 @@ public sealed class PanelRelations(PanelRoundDbContext db, TimeProvider clock)
         }
         var answers = await CountedAnswers.LoadAsync(db, round.Id);
         var codes = await db.Memberships.AsNoTracking().Where(m => m.PanelId == panelId).ToDictionaryAsync(m => m.Id, m => m.PanelCode);
+        return ByPanelCode(relations, answers, codes, panel.Settings.RelationTolerance);
+    }
+
+    /// <summary>The checks by panel code of a panel already read (see the other overload).</summary>
+    public async Task<IReadOnlyList<(RelationDto Relation, IReadOnlyList<RelationCodeCheck> Codes)>> ByPanelCodeAsync(PanelSnapshot snapshot)
+    {
+        ArgumentNullException.ThrowIfNull(snapshot);
+        var round = snapshot.Rounds.Count > 0 ? snapshot.Rounds[^1] : null;
+        var relations = await snapshot.RelationsAsync();
+        if (round is null || relations.Count == 0)
+        {
+            return [];
+        }
+        return ByPanelCode(relations, snapshot.AnswersOf(round), snapshot.Codes, snapshot.Panel.Settings.RelationTolerance);
+    }
+
+    private static IReadOnlyList<(RelationDto Relation, IReadOnlyList<RelationCodeCheck> Codes)> ByPanelCode(
+        IReadOnlyList<QuestionRelation> relations, IReadOnlyList<CountedAnswer> answers, IReadOnlyDictionary<int, string> codes, double tolerance)
+    {
         var periods = answers.Select(a => a.Period).Distinct().OrderBy(p => Period.Parse(p)).ToList();
         return relations.Where(r => DerivedRole(r) is null).Select(r => (RelationDto.From(r), (IReadOnlyList<RelationCodeCheck>)answers.GroupBy(a => a.MembershipId)
             .Select(g =>
             {
                 var own = g.ToDictionary(a => (a.QuestionId, a.Period), a => a.Headline);
                 return new RelationCodeCheck(codes.GetValueOrDefault(g.Key, "?"),
-                    Check(r, periods, (q, p) => own.TryGetValue((q, p), out var v) && double.IsFinite(v) ? v : null, panel.Settings.RelationTolerance)
+                    Check(r, periods, (q, p) => own.TryGetValue((q, p), out var v) && double.IsFinite(v) ? v : null, tolerance)
                         .Where(c => c.ImpliedResult is not null).ToList());
             })
             .Where(c => c.Periods.Count > 0).OrderBy(c => c.PanelCode, StringComparer.Ordinal).ToList())).ToList();

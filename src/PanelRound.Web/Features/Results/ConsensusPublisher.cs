@@ -26,7 +26,6 @@ public sealed class ConsensusPublisher(PanelRoundDbContext db, TimeProvider cloc
     public async Task<IReadOnlyList<ConsensusEntry>> ComputeAsync(Panel panel, Round round, ConsensusWeighting? weighting = null, MemberWeightsByFormat? known = null)
     {
         var answers = await CountedAnswers.LoadAsync(db, round.Id);
-        var settings = FeedbackCalculator.SettingsOf(panel.Settings);
         var mode = weighting ?? panel.Settings.Weighting;
         var memberWeights = mode == ConsensusWeighting.TrackRecord
             ? known ?? await weights.ForPanelAsync(panel.Id, panel.ConcludedAt ?? clock.GetUtcNow().UtcDateTime)
@@ -34,13 +33,28 @@ public sealed class ConsensusPublisher(PanelRoundDbContext db, TimeProvider cloc
         var calibrationWeights = mode == ConsensusWeighting.Calibration
             ? await Calibration.CalibrationScoring.MembershipWeightsAsync(db, panel, round)
             : null;
+        return Compute(panel, answers, memberWeights, calibrationWeights);
+    }
+
+    /// <summary>The consensus of each question-period from answers already read.</summary>
+    /// <param name="panel">The panel, with its questions.</param>
+    /// <param name="answers">The answers that count in the round.</param>
+    /// <param name="memberWeights">Track-record weights (track-record weighting), else null.</param>
+    /// <param name="calibrationWeights">Calibration-question weights by membership (calibration weighting), else null.</param>
+    public IReadOnlyList<ConsensusEntry> Compute(
+        Panel panel, IReadOnlyList<CountedAnswer> answers, MemberWeightsByFormat? memberWeights, IReadOnlyDictionary<int, double>? calibrationWeights)
+    {
+        ArgumentNullException.ThrowIfNull(panel);
+        ArgumentNullException.ThrowIfNull(answers);
+        var settings = FeedbackCalculator.SettingsOf(panel.Settings);
         var now = clock.GetUtcNow().UtcDateTime;
         var entries = new List<ConsensusEntry>();
+        var byPeriod = answers.ToLookup(a => (a.QuestionId, a.Period));
         foreach (var q in panel.Questions.Where(q => !q.IsCalibration).OrderBy(q => q.Order))
         {
             foreach (var period in q.TargetPeriods.Split(','))
             {
-                var forPeriod = answers.Where(a => a.QuestionId == q.Id && a.Period == period).ToList();
+                var forPeriod = byPeriod[(q.Id, period)].ToList();
                 if (forPeriod.Count == 0)
                 {
                     continue;

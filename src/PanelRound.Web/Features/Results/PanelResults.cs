@@ -1,5 +1,4 @@
 using System.Text.Json;
-using Microsoft.EntityFrameworkCore;
 using PanelRound.Core.Statistics;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
@@ -29,27 +28,25 @@ public sealed record PanelResultsView(int PanelId, string Title, PanelState Stat
 /// </summary>
 public sealed class PanelResults(PanelRoundDbContext db)
 {
-    public async Task<PanelResultsView?> BuildAsync(int panelId)
+    /// <summary>One read of a panel for the views computed from it (<see cref="PanelSnapshot"/>); null when it does not exist.</summary>
+    public Task<PanelSnapshot?> SnapshotAsync(int panelId) => PanelSnapshot.LoadAsync(db, panelId);
+
+    public async Task<PanelResultsView?> BuildAsync(int panelId) =>
+        await PanelSnapshot.LoadAsync(db, panelId) is { } snapshot ? Build(snapshot) : null;
+
+    /// <summary>The results of a panel already read.</summary>
+    public static PanelResultsView Build(PanelSnapshot snapshot)
     {
-        var panel = await db.Panels.AsNoTracking().Include(p => p.Questions).ThenInclude(q => q.Indicator).Include(p => p.Rounds)
-            .FirstOrDefaultAsync(p => p.Id == panelId);
-        if (panel is null)
-        {
-            return null;
-        }
+        ArgumentNullException.ThrowIfNull(snapshot);
+        var panel = snapshot.Panel;
         var settings = FeedbackCalculator.SettingsOf(panel.Settings);
-        var codes = await db.Memberships.AsNoTracking().Where(m => m.PanelId == panelId).ToDictionaryAsync(m => m.Id, m => m.PanelCode);
-        var rounds = panel.Rounds.OrderBy(r => r.Number).ToList();
+        var codes = snapshot.Codes;
+        var rounds = snapshot.Rounds;
         // Each round's answers grouped once by question-period, so the loops below do no scans.
-        var answersByRound = new Dictionary<int, ILookup<(int, string), CountedAnswer>>();
-        foreach (var r in rounds)
-        {
-            answersByRound[r.Number] = (await CountedAnswers.LoadAsync(db, r.Id)).ToLookup(a => (a.QuestionId, a.Period));
-        }
-        var references = await IndicatorCatalog.ReferenceSeriesAsync(db, panel.Questions.Select(q => q.IndicatorId).Distinct().ToList(), panel.StartsOn);
-        var frozen = (await db.FrozenFeedback.AsNoTracking().Where(f => rounds.Select(r => r.Id).Contains(f.RoundId)).ToListAsync())
-            .ToDictionary(f => (f.RoundId, f.QuestionId, f.Period));
-        var consensus = await db.Consensus.AsNoTracking().Where(c => c.PanelId == panelId).ToListAsync();
+        var answersByRound = rounds.ToDictionary(r => r.Number, r => snapshot.AnswersOf(r).ToLookup(a => (a.QuestionId, a.Period)));
+        var references = snapshot.References;
+        var frozen = snapshot.Frozen.ToDictionary(f => (f.RoundId, f.QuestionId, f.Period));
+        var consensus = snapshot.Consensus;
 
         var questions = new List<QuestionResult>();
         foreach (var q in panel.Questions.OrderBy(q => q.Order))

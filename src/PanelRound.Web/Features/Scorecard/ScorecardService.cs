@@ -225,20 +225,26 @@ public sealed class ScorecardService(
     /// panel does not exist or no round has closed. The weights shown are the ones the track-record
     /// consensus is computed with (one set per response format), from one load of the scoring data.
     /// </summary>
-    public async Task<ConsensusComparison?> CompareAsync(int panelId, ScoringData? data = null)
+    public async Task<ConsensusComparison?> CompareAsync(int panelId, ScoringData? data = null) =>
+        await PanelSnapshot.LoadAsync(db, panelId) is { } snapshot ? await CompareAsync(snapshot, data) : null;
+
+    /// <summary>The comparison of a panel already read (see the other overload); the scoring data is read once, here, unless given.</summary>
+    public async Task<ConsensusComparison?> CompareAsync(PanelSnapshot snapshot, ScoringData? data = null)
     {
-        var panel = await db.Panels.AsNoTracking().Include(p => p.Questions).ThenInclude(q => q.Indicator).Include(p => p.Rounds)
-            .AsSplitQuery().FirstOrDefaultAsync(p => p.Id == panelId);
-        var last = panel?.Rounds.Where(r => r.State == RoundState.Closed).MaxBy(r => r.Number);
-        if (panel is null || last is null)
+        ArgumentNullException.ThrowIfNull(snapshot);
+        var panel = snapshot.Panel;
+        var last = snapshot.LastClosedRound;
+        if (last is null)
         {
             return null;
         }
         var asOf = panel.ConcludedAt ?? clock.GetUtcNow().UtcDateTime;
         data ??= await scoring.LoadAsync();
-        var detail = (await weights.DetailAsync(panelId, asOf, data))!;
-        var equal = await publisher.ComputeAsync(panel, last, ConsensusWeighting.Equal);
-        var weighted = (await publisher.ComputeAsync(panel, last, ConsensusWeighting.TrackRecord, detail.ByFormat)).ToDictionary(c => (c.QuestionId, c.Period));
+        var detail = weights.Detail(panel.Id, [.. panel.Questions.Select(q => q.Format).Distinct()], snapshot.Members, asOf, data);
+        var answers = snapshot.AnswersOf(last);
+        var equal = publisher.Compute(panel, answers, null, null);
+        var weighted = publisher.Compute(panel, answers, detail.ByFormat, null).ToDictionary(c => (c.QuestionId, c.Period));
+        var panelId = panel.Id;
         var questions = panel.Questions.ToDictionary(q => q.Id);
         var targets = equal.Select(e =>
         {

@@ -74,8 +74,16 @@ public sealed class TrackRecordWeightsService(PanelRoundDbContext db, ScoringDat
         }
         var formats = await db.Questions.AsNoTracking().Where(q => q.PanelId == panelId).Select(q => q.Format).Distinct().ToListAsync();
         var members = await db.Memberships.AsNoTracking().Where(m => m.PanelId == panelId).OrderBy(m => m.PanelCode)
-            .Select(m => new { m.Id, m.PanelCode, m.ExpertId }).ToListAsync();
-        data ??= await scoring.LoadAsync();
+            .Select(m => new SnapshotMember(m.Id, m.PanelCode, m.ExpertId)).ToListAsync();
+        return Detail(panelId, formats, members, asOf, data ?? await scoring.LoadAsync());
+    }
+
+    /// <summary>The weights with their records, from a panel's question formats and members (by panel code) and the scoring data, already read.</summary>
+    public PanelWeights Detail(int panelId, IReadOnlyCollection<ResponseFormat> formats, IReadOnlyList<SnapshotMember> members, DateTime asOf, ScoringData data)
+    {
+        ArgumentNullException.ThrowIfNull(formats);
+        ArgumentNullException.ThrowIfNull(members);
+        ArgumentNullException.ThrowIfNull(data);
         var day = DateOnly.FromDateTime(asOf);
         var known = data.ExpertItems.Where(i => Backtest.IsKnownBefore(i, day)).ToList();
         var keys = members.Select(m => ScoringDataLoader.ExpertKeyOf(m.ExpertId)).Distinct(StringComparer.Ordinal).ToList();

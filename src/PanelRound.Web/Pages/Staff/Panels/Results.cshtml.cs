@@ -42,20 +42,23 @@ public class ResultsModel(PanelResults results, ScorecardService scorecard, Pane
 
     public async Task<IActionResult> OnGetAsync()
     {
-        var view = await results.BuildAsync(Id);
-        if (view is null)
+        // One read of the panel for everything on the page.
+        var snapshot = await results.SnapshotAsync(Id);
+        if (snapshot is null)
         {
             return NotFound();
         }
+        var view = PanelResults.Build(snapshot);
         View = view;
-        Comparison = await scorecard.CompareAsync(Id);
-        Benchmarks = await benchmarks.BuildAsync(Id);
-        Relations = PanelRelations.OnConsensus(await relations.ListAsync(Id) ?? [], view);
-        RelationsByCode = await relations.ByPanelCodeAsync(Id);
-        if (await calibration.ViewAsync(Id) is { Questions.Count: > 0 } cal)
+        Comparison = await scorecard.CompareAsync(snapshot);
+        Benchmarks = benchmarks.Build(snapshot);
+        Relations = PanelRelations.OnConsensus(await snapshot.RelationsAsync(), view);
+        RelationsByCode = await relations.ByPanelCodeAsync(snapshot);
+        var calibrationData = CalibrationScoring.Of(snapshot);
+        if (calibrationData.Questions.Count > 0)
         {
-            Calibration = cal;
-            CalibrationComparison = await calibration.CompareAsync(Id, Comparison);
+            Calibration = CalibrationResults.ViewOf(calibrationData);
+            CalibrationComparison = await calibration.CompareAsync(snapshot, calibrationData, Comparison);
         }
         return Page();
     }
