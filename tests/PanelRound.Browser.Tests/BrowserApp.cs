@@ -7,6 +7,9 @@ using Microsoft.Playwright;
 using PanelRound.Data;
 using PanelRound.Web.Demo;
 
+// One browser story at a time: each starts its own app and Chromium, and the machine running CI has two cores.
+[assembly: CollectionBehavior(DisableTestParallelization = true)]
+
 namespace PanelRound.Browser.Tests;
 
 /// <summary>
@@ -52,8 +55,10 @@ public sealed class BrowserApp : IAsyncLifetime
             // A plain-HTTP test server: cookies without the Secure flag, as in development.
             b.UseSetting("Security:SecureCookies", "false");
             b.UseSetting("Demo:Folder", DemoFolder);
+            // A free port of the loopback interface, chosen by the system (several fixtures may run one after another).
+            b.UseSetting("urls", "http://127.0.0.1:0");
         });
-        _app.UseKestrel(0);
+        _app.UseKestrel();
         _app.StartServer();
         BaseUrl = _app.Services.GetRequiredService<IServer>().Features.Get<IServerAddressesFeature>()!.Addresses.First().Replace("[::]", "127.0.0.1", StringComparison.Ordinal);
         _playwright = await Playwright.CreateAsync();

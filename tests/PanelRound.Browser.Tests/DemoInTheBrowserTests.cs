@@ -35,8 +35,9 @@ public sealed class DemoInTheBrowserTests : IAsyncLifetime
             // A plain-HTTP test server: cookies without the Secure flag, as in development.
             b.UseSetting("Security:SecureCookies", "false");
             b.UseSetting("Demo:Folder", Path.Combine(AppContext.BaseDirectory, "demo-data"));
+            b.UseSetting("urls", "http://127.0.0.1:0");
         });
-        _app.UseKestrel(0);
+        _app.UseKestrel();
         _app.StartServer();
         _base = _app.Services.GetRequiredService<IServer>().Features.Get<IServerAddressesFeature>()!.Addresses.First().Replace("[::]", "127.0.0.1", StringComparison.Ordinal);
         _playwright = await Playwright.CreateAsync();
@@ -103,7 +104,7 @@ public sealed class DemoInTheBrowserTests : IAsyncLifetime
         await staff.FillAsync("#Input_Password", facilitator.Password);
         await staff.ClickAsync("button[type=submit]");
         await Assertions.Expect(staff.Locator("h1")).ToHaveTextAsync("Panels");
-        await staff.GetByRole(AriaRole.Link, new() { Name = open.Title }).ClickAsync();
+        await staff.GetByRole(AriaRole.Link, new() { Name = open.Title, Exact = true }).ClickAsync();
         await Assertions.Expect(staff.GetByText($"{answered.Count + 1} of {open.Members.Count} answered")).ToBeVisibleAsync();
         await staff.GetByRole(AriaRole.Link, new() { Name = "Results" }).ClickAsync();
         await Assertions.Expect(staff.GetByText("2 (live)").First).ToBeVisibleAsync();

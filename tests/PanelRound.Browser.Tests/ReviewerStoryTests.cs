@@ -36,7 +36,8 @@ public sealed class ReviewerStoryTests(BrowserApp app) : IClassFixture<BrowserAp
         await page.FillAsync("#Input_Source", "Observatory bulletin, revised (browser story)");
         await page.ClickAsync("button[type=submit]:has-text('Record')");
         await Assertions.Expect(page.Locator(".alert-success")).ToBeVisibleAsync();
-        var row = page.Locator("#outcome-periods tbody tr").Filter(new() { HasText = period }).Filter(new() { HasText = "Old Harbour" });
+        var row = page.Locator("#outcome-periods tbody tr").Filter(new() { HasText = "Old Harbour" })
+            .Filter(new() { Has = page.Locator($"td:text-is('{period}')") });
         await Assertions.Expect(row).ToContainTextAsync(corrected.ToString("N0", CultureInfo.InvariantCulture));
         await staff.CheckAsync("story-outcome-recorded");
 
@@ -51,7 +52,8 @@ public sealed class ReviewerStoryTests(BrowserApp app) : IClassFixture<BrowserAp
         // One expert's page: the forecast for that period is scored against the corrected outcome,
         // error = forecast − outcome (the design's sign convention: positive is an optimist).
         await page.GotoAsync($"{app.BaseUrl}/Staff/Scorecard/Expert/{expertId}");
-        var forecastRow = page.Locator("tr").Filter(new() { HasText = panel.Title }).Filter(new() { HasText = "(final)" })
+        var track = page.Locator("xpath=//h2[contains(., 'Old Harbour')]/following-sibling::div[contains(@class, 'table-responsive')][1]");
+        var forecastRow = track.Locator("tr").Filter(new() { HasText = panel.Title }).Filter(new() { HasText = "(final)" })
             .Filter(new() { Has = page.Locator($"td:text-is('{period}')") });
         var cells = await forecastRow.First.Locator("td").AllInnerTextsAsync();
         var forecast = Parse(cells[3]);

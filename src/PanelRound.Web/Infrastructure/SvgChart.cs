@@ -144,7 +144,9 @@ public static class SvgChart
 
     private static StringBuilder Start(string? title, int w, int h)
     {
-        var sb = new StringBuilder(Inv($"<svg viewBox=\"0 0 {w} {h}\" role=\"img\" class=\"chart\" xmlns=\"http://www.w3.org/2000/svg\">"));
+        // A drawing without a title is decoration beside text that says the same; one with a title is named by it.
+        var name = title is null ? "aria-hidden=\"true\"" : Inv($"role=\"img\" aria-label=\"{Esc(title)}\"");
+        var sb = new StringBuilder(Inv($"<svg viewBox=\"0 0 {w} {h}\" {name} class=\"chart\" xmlns=\"http://www.w3.org/2000/svg\">"));
         if (title is not null)
         {
             sb.Append("<title>").Append(Esc(title)).Append("</title>");
