@@ -84,7 +84,7 @@ public abstract partial class ExpertPageTests(IDatabaseFixture fixture) : Provid
         Assert.Contains("There are 3 problems with your answers", summary.Groups[1].Value, StringComparison.Ordinal);
         // The summary comes before the questions.
         Assert.True(summary.Index < html.IndexOf("question-card", StringComparison.Ordinal));
-        var targets = Regex.Matches(summary.Groups[1].Value, "<li><a href=\"#([^\"]+)\">([^<]+)</a></li>").Select(m => (Id: m.Groups[1].Value, Text: m.Groups[2].Value)).ToList();
+        var targets = Regex.Matches(summary.Groups[1].Value, "<li><a class=\"alert-link\" href=\"#([^\"]+)\">([^<]+)</a></li>").Select(m => (Id: m.Groups[1].Value, Text: m.Groups[2].Value)).ToList();
         Assert.Equal(3, targets.Count);
         Assert.Contains(targets, t => t.Id == IndexModel.FieldId(0, 1, "value") && t.Text == $"Price, {p.Periods[1]}: a value is required.");
         Assert.Contains(targets, t => t.Id == "conf-0");
@@ -232,7 +232,7 @@ public abstract partial class ExpertPageTests(IDatabaseFixture fixture) : Provid
         await api.PostOk($"/api/panels/{p.PanelId}/conclude", new { }, HttpStatusCode.OK);
 
         var page = await client.GetStringAsync("/expert");
-        Assert.Contains("<a href=\"#consensus\">See the published consensus.</a>", page, StringComparison.Ordinal);
+        Assert.Contains("<a href=\"#consensus\" class=\"alert-link\">See the published consensus.</a>", page, StringComparison.Ordinal);
         var rows = ConsensusRows(page);
         foreach (var period in p.Periods)
         {
