@@ -35,6 +35,7 @@ public static class FeatureSetup
         services.AddHostedService(sp => sp.GetRequiredService<RoundDeadlineService>());
 
         // Answers: the expert's form and submissions.
+        services.AddSingleton<PanelDefinitions>();
         services.AddScoped<ExpertAnswers>();
 
         // Results: results per question, the consensus and the panel's conclusion.
@@ -50,6 +51,7 @@ public static class FeatureSetup
         services.AddOptions<ScoringOptions>().BindConfiguration(ScoringOptions.Section)
             .Validate(o => o.IsValid, "Scoring:PseudoForecasts must be a finite number, 0 or more; Scoring:ImportPublicationLagDays 0 to 3650.")
             .ValidateOnStart();
+        services.AddSingleton<ScoringDataCache>();
         services.AddScoped<ScoringDataLoader>();
         services.AddScoped<TrackRecordWeightsService>();
         services.AddScoped<IMemberWeights>(sp => sp.GetRequiredService<TrackRecordWeightsService>());

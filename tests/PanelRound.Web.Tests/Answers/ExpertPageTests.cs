@@ -174,6 +174,8 @@ public abstract partial class ExpertPageTests(IDatabaseFixture fixture) : Provid
             var panel = await db.Panels.SingleAsync(x => x.Id == p.PanelId);
             panel.ContactName = "Rosa Vell";
             panel.ContactEmail = "rosa.vell@research.example";
+            // As every edit of a panel does: a new version (what the expert's requests key their read of the panel by).
+            panel.Version = Guid.NewGuid();
             await db.SaveChangesAsync();
         });
 

@@ -3,7 +3,6 @@ using Microsoft.EntityFrameworkCore;
 using PanelRound.Core.Domain;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
-using PanelRound.Web.Features.Indicators;
 using PanelRound.Web.Features.Rounds;
 using PanelRound.Web.Infrastructure;
 
@@ -17,26 +16,37 @@ public sealed record SubmissionReceipt(int Round, int Saved, bool Draft, DateTim
 /// revisions; each a new row, the latest counting), refused with field-level errors or, for a
 /// closed round, a conflict.
 /// </summary>
-public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
+public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock, PanelDefinitions definitions)
 {
     private DateTime Now => clock.GetUtcNow().UtcDateTime;
 
     /// <summary>The form behind a personal link, for the membership the request's credential resolved (not read again).</summary>
+    /// <remarks>
+    /// Implementation note: three reads, whatever the panel's size: the panel's version and state with
+    /// its rounds and the catalog's newest observation id; the expert's own answers; and, once the
+    /// panel concluded, its consensus. The definition, frozen feedback and reference series come
+    /// from <see cref="PanelDefinitions"/> (read once per version).
+    /// </remarks>
     public async Task<ExpertForm> GetFormAsync(PanelMembership m)
     {
-        var panel = await db.Panels.AsNoTracking().Include(p => p.Questions).ThenInclude(q => q.Indicator).Include(p => p.Rounds).SingleAsync(p => p.Id == m.PanelId);
-        var (round, canAnswer, reason) = Status(panel);
+        var now = await db.Panels.AsNoTracking().Where(p => p.Id == m.PanelId)
+            .Select(p => new { p.Version, p.State, p.ConcludedAt, Rounds = p.Rounds.ToList(), Catalog = db.Observations.Max(o => (int?)o.Id) })
+            .SingleAsync();
+        var definition = await definitions.GetAsync(db, m.PanelId, now.Version);
+        var panel = definition.Panel;
+        var rounds = now.Rounds;
+        var (round, canAnswer, reason) = Status(now.State, now.ConcludedAt, rounds);
         // The feedback shown is the previous round's: round k-1 while round k is open, else the last closed round's.
         var feedbackRound = round is { State: RoundState.Open }
-            ? panel.Rounds.FirstOrDefault(r => r.Number == round.Number - 1 && r.State == RoundState.Closed)
-            : panel.Rounds.Where(r => r.State == RoundState.Closed).MaxBy(r => r.Number);
-        var frozen = feedbackRound is null ? [] : await db.FrozenFeedback.AsNoTracking().Where(f => f.RoundId == feedbackRound.Id).ToListAsync();
+            ? rounds.FirstOrDefault(r => r.Number == round.Number - 1 && r.State == RoundState.Closed)
+            : rounds.Where(r => r.State == RoundState.Closed).MaxBy(r => r.Number);
+        var frozen = feedbackRound is null ? [] : await definitions.FrozenAsync(db, feedbackRound.Id, feedbackRound.Version, feedbackRound.State == RoundState.Closed);
         var own = await db.Estimates.AsNoTracking().Where(e => e.MembershipId == m.Id).ToListAsync();
         var currentRows = round is null ? [] : own.Where(e => e.RoundId == round.Id).ToList();
-        var previousRound = round is null ? null : panel.Rounds.FirstOrDefault(r => r.Number == round.Number - 1);
+        var previousRound = round is null ? null : rounds.FirstOrDefault(r => r.Number == round.Number - 1);
         var previousRows = previousRound is null ? [] : own.Where(e => e.RoundId == previousRound.Id && !e.IsDraft).ToList();
 
-        var references = await IndicatorCatalog.ReferenceSeriesAsync(db, panel.Questions.Select(q => q.IndicatorId).Distinct().ToList(), panel.StartsOn);
+        var references = await definitions.ReferencesAsync(db, definition, now.Catalog);
         var questions = new List<ExpertQuestion>();
         foreach (var q in panel.Questions.OrderBy(q => q.Order))
         {
@@ -67,8 +77,8 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
         var contact = string.IsNullOrWhiteSpace(panel.ContactName) && string.IsNullOrWhiteSpace(panel.ContactEmail)
             ? null
             : new PanelContact(NullIfBlank(panel.ContactName), NullIfBlank(panel.ContactEmail));
-        var (consensusRound, consensus) = panel.State == PanelState.Concluded ? await ConsensusAsync(panel, own) : (null, []);
-        return new ExpertForm(panel.Id, m.Id, m.PanelCode, panel.Title, Markdown.ToSafeHtml(panel.Brief), panel.State,
+        var (consensusRound, consensus) = now.State == PanelState.Concluded ? await ConsensusAsync(panel, rounds, own) : (null, []);
+        return new ExpertForm(panel.Id, m.Id, m.PanelCode, panel.Title, definition.BriefHtml, now.State,
             round is null ? null : new RoundInfo(round.Number, round.OpensAt, round.ClosesAt, canAnswer),
             canAnswer, reason, feedbackRound?.Number, panel.Settings.OutliersMustJustify, lastSubmit, questions,
             Now, contact, consensusRound, consensus);
@@ -80,9 +90,9 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
     /// period with fewer answers than the panel's minimum group size shows no number; its band only
     /// from as many answers as the group's spread needs (a band of few answers gives them away).
     /// </summary>
-    private async Task<(int? Round, IReadOnlyList<ExpertConsensus> Entries)> ConsensusAsync(Panel panel, List<Estimate> own)
+    private async Task<(int? Round, IReadOnlyList<ExpertConsensus> Entries)> ConsensusAsync(Panel panel, List<Round> rounds, List<Estimate> own)
     {
-        var finalRound = panel.Rounds.Where(r => r.State == RoundState.Closed).MaxBy(r => r.Number);
+        var finalRound = rounds.Where(r => r.State == RoundState.Closed).MaxBy(r => r.Number);
         var published = await db.Consensus.AsNoTracking().Where(c => c.PanelId == panel.Id).ToListAsync();
         var finalOwn = finalRound is null ? [] : own.Where(e => e.RoundId == finalRound.Id && !e.IsDraft).ToList();
         var entries = new List<ExpertConsensus>();
@@ -108,16 +118,16 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
 
     private static string? NullIfBlank(string? text) => string.IsNullOrWhiteSpace(text) ? null : text.Trim();
 
-    private (Round? Round, bool CanAnswer, string? Reason) Status(Panel panel)
+    private (Round? Round, bool CanAnswer, string? Reason) Status(PanelState state, DateTime? concludedAt, IReadOnlyCollection<Round> rounds)
     {
-        var open = panel.Rounds.FirstOrDefault(r => r.State == RoundState.Open);
-        if (panel.State == PanelState.Concluded)
+        var open = rounds.FirstOrDefault(r => r.State == RoundState.Open);
+        if (state == PanelState.Concluded)
         {
-            return (panel.Rounds.MaxBy(r => r.Number), false, $"The panel concluded on {panel.ConcludedAt:yyyy-MM-dd}; its consensus is published and answers are read-only.");
+            return (rounds.MaxBy(r => r.Number), false, $"The panel concluded on {concludedAt:yyyy-MM-dd}; its consensus is published and answers are read-only.");
         }
         if (open is null)
         {
-            var last = panel.Rounds.MaxBy(r => r.Number);
+            var last = rounds.MaxBy(r => r.Number);
             return last is null
                 ? (null, false, "No round has opened yet.")
                 : (last, false, $"Round {last.Number} closed on {last.ClosedAt:yyyy-MM-dd HH:mm} UTC; answers can no longer be changed. The next round has not opened yet.");
@@ -127,6 +137,46 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
             return (open, false, $"Round {open.Number} reached its deadline ({open.ClosesAt:yyyy-MM-dd HH:mm} UTC); answers can no longer be changed.");
         }
         return (open, true, null);
+    }
+
+    /// <summary>The open round a submission may enter, with its panel's version and the previous round's id and version.</summary>
+    private sealed record OpenRound(int Id, int Number, Guid PanelVersion, int? PreviousId, Guid? PreviousVersion);
+
+    /// <summary>
+    /// Locks the panel's open round, on the condition that it is open and before its deadline, for
+    /// the rest of the transaction; null when there is none. PostgreSQL: a shared row lock, one
+    /// statement. SQLite: the write lock, taken by a no-op update, then the round read.
+    /// </summary>
+    private async Task<OpenRound?> LockOpenRoundAsync(int panelId, DateTime deadlineCheck)
+    {
+        if (db.Database.IsNpgsql())
+        {
+            return (await db.Database.SqlQuery<OpenRound>($"""
+                SELECT r."Id", r."Number", p."Version" AS "PanelVersion", pr."Id" AS "PreviousId", pr."Version" AS "PreviousVersion"
+                FROM "Rounds" r
+                JOIN "Panels" p ON p."Id" = r."PanelId"
+                LEFT JOIN "Rounds" pr ON pr."PanelId" = r."PanelId" AND pr."Number" = r."Number" - 1
+                WHERE r."PanelId" = {panelId} AND r."State" = {(int)RoundState.Open} AND r."ClosesAt" > {deadlineCheck}
+                FOR SHARE OF r
+                """).ToListAsync()).SingleOrDefault();
+        }
+        var locked = await db.Rounds.Where(r => r.PanelId == panelId && r.State == RoundState.Open && r.ClosesAt > deadlineCheck)
+            .ExecuteUpdateAsync(u => u.SetProperty(r => r.Version, r => r.Version));
+        return locked == 0
+            ? null
+            : await db.Rounds.AsNoTracking().Where(r => r.PanelId == panelId && r.State == RoundState.Open)
+                .Select(r => new OpenRound(r.Id, r.Number, r.Panel!.Version,
+                    db.Rounds.Where(x => x.PanelId == panelId && x.Number == r.Number - 1).Select(x => (int?)x.Id).FirstOrDefault(),
+                    db.Rounds.Where(x => x.PanelId == panelId && x.Number == r.Number - 1).Select(x => (Guid?)x.Version).FirstOrDefault()))
+                .SingleAsync();
+    }
+
+    /// <summary>Why the panel takes no answers now, read from the panel as it is.</summary>
+    private async Task<string> WhyClosedAsync(int panelId)
+    {
+        var panel = await db.Panels.AsNoTracking().Include(p => p.Rounds).SingleAsync(p => p.Id == panelId);
+        var (round, _, reason) = Status(panel.State, panel.ConcludedAt, panel.Rounds);
+        return reason ?? (round is null ? "No round is open." : $"Round {round.Number} closed; answers can no longer be changed.");
     }
 
     private static AnswerValues? Values(Estimate? e) => e is null ? null : new AnswerValues(e.Value, e.P10, e.P50, e.P90);
@@ -159,32 +209,22 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
         {
             return replay;
         }
-        var panel = await db.Panels.AsNoTracking().Include(p => p.Questions).ThenInclude(q => q.Indicator).Include(p => p.Rounds).SingleAsync(p => p.Id == m.PanelId);
-        var (_, canAnswer, reason) = Status(panel);
-        var round = panel.Rounds.FirstOrDefault(r => r.State == RoundState.Open);
-        if (!canAnswer || round is null)
+        await using var tx = await db.Database.BeginTransactionAsync();
+        var deadlineCheck = Now;
+        if (await LockOpenRoundAsync(m.PanelId, deadlineCheck) is not { } round)
         {
-            return Result<SubmissionReceipt>.Conflict(reason ?? "No round is open.");
+            return Result<SubmissionReceipt>.Conflict(await WhyClosedAsync(m.PanelId));
         }
-        var previous = panel.Rounds.FirstOrDefault(r => r.Number == round.Number - 1);
-        var previousFeedback = previous is null || !panel.Settings.OutliersMustJustify
+        var panel = (await definitions.GetAsync(db, m.PanelId, round.PanelVersion)).Panel;
+        var previousFeedback = round.PreviousId is not { } previousId || !panel.Settings.OutliersMustJustify
             ? []
-            : (await db.FrozenFeedback.AsNoTracking().Where(f => f.RoundId == previous.Id && !f.Withheld)
-                    .Select(f => new { f.QuestionId, f.Period, f.StatisticsJson }).ToListAsync())
+            : (await definitions.FrozenAsync(db, previousId, round.PreviousVersion!.Value, closed: true)).Where(f => !f.Withheld)
                 .ToDictionary(f => (f.QuestionId, f.Period), f => FeedbackView.FromJson(f.StatisticsJson).Shown?.Spread);
         var check = SubmissionValidator.Validate(panel.Questions, input, previousFeedback);
         if (check.Errors.Any)
         {
             return Result<SubmissionReceipt>.Invalid(check.Errors);
         }
-        await using var tx = await db.Database.BeginTransactionAsync();
-        var deadlineCheck = Now;
-        var stillOpen = db.Database.IsNpgsql()
-            ? (await db.Database.SqlQuery<int>(
-                $"""SELECT 1 AS "Value" FROM "Rounds" WHERE "Id" = {round.Id} AND "State" = {(int)RoundState.Open} AND "ClosesAt" > {deadlineCheck} FOR SHARE""")
-                .ToListAsync()).Count
-            : await db.Rounds.Where(r => r.Id == round.Id && r.State == RoundState.Open && r.ClosesAt > deadlineCheck)
-                .ExecuteUpdateAsync(u => u.SetProperty(r => r.Version, r => r.Version));
         var stillMember = await db.Memberships.Where(x => x.Id == m.Id && x.State != MembershipState.Revoked && x.TokenHash == m.TokenHash)
             .ExecuteUpdateAsync(u => u.SetProperty(x => x.LastSeenAt, deadlineCheck)
                 .SetProperty(x => x.State, x => x.State == MembershipState.Invited ? MembershipState.Active : x.State));
@@ -194,10 +234,6 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock)
         // Whole microseconds: what PostgreSQL keeps, so a replayed receipt shows the same time as the first.
         var clockNow = Now;
         var now = clockNow.AddTicks(-(clockNow.Ticks % TimeSpan.TicksPerMicrosecond));
-        if (stillOpen == 0)
-        {
-            return Result<SubmissionReceipt>.Conflict($"Round {round.Number} closed; answers can no longer be changed.");
-        }
         if (stillMember == 0)
         {
             return Result<SubmissionReceipt>.NotFound("This personal link is unknown or has been revoked.");

@@ -34,4 +34,17 @@ internal sealed class InputKeyedCache<T>(int capacity)
         _entries.TryAdd(key, value);
         return value;
     }
+
+    /// <summary>The value stored for the key before, else null.</summary>
+    public T? Find(string key) => _entries.TryGetValue(key, out var hit) ? hit : null;
+
+    /// <summary>Keeps a value computed elsewhere under its key.</summary>
+    public void Add(string key, T value)
+    {
+        if (_entries.Count >= capacity)
+        {
+            _entries.Clear();
+        }
+        _entries[key] = value;
+    }
 }

@@ -19,8 +19,15 @@ namespace PanelRound.Web.Features.Scorecard;
 /// correction does not make an outcome newer), each row's <c>ObservedOn</c>, else its recording day. Panels that have not concluded are left out: their last round, and so
 /// their final-round answers, are not settled yet. Items whose period has no outcome yet are
 /// left out; malformed answers (a range that is not ordered, a missing value) too.
+///
+/// Implementation note: what is loaded is kept in memory (<see cref="ScoringDataCache"/>) with the
+/// fingerprint of everything it depends on, read in one query first: the concluded panels (their
+/// number and the newest), the consensus rows, the observations and the revoked links. A concluded
+/// panel's questions, rounds and answers, indicators and experts do not change, and observations
+/// and consensus rows are only appended (a correction or republication is a new row), so the same
+/// fingerprint means the same data.
 /// </remarks>
-public sealed class ScoringDataLoader(PanelRoundDbContext db)
+public sealed class ScoringDataLoader(PanelRoundDbContext db, ScoringDataCache cache)
 {
     /// <summary>The expert key of the panel's consensus scored as a virtual expert.</summary>
     public const string ConsensusKey = "consensus";
@@ -37,7 +44,30 @@ public sealed class ScoringDataLoader(PanelRoundDbContext db)
     /// <summary>The internal key of a panel in scored items and the backtest: by id, so an imported key can never collide with an app panel.</summary>
     public static string PanelKeyOf(int panelId) => string.Create(CultureInfo.InvariantCulture, $"panel:{panelId}");
 
+    /// <summary>What the scored items are computed from; two loads see the same data unless one of these changed.</summary>
+    public sealed record Fingerprint(int Concluded, int? LastConcluded, DateTime? LastConcludedAt, int? LastConsensus, int? LastObservation, int Revoked);
+
+    /// <summary>The scored items, from memory while the data they come from is unchanged.</summary>
     public async Task<ScoringData> LoadAsync()
+    {
+        var fingerprint = (await db.Database.SqlQuery<Fingerprint>($"""
+            SELECT (SELECT CAST(COUNT(*) AS INTEGER) FROM "Panels" WHERE "State" = {(int)PanelState.Concluded}) AS "Concluded",
+                   (SELECT MAX("Id") FROM "Panels" WHERE "State" = {(int)PanelState.Concluded}) AS "LastConcluded",
+                   (SELECT MAX("ConcludedAt") FROM "Panels" WHERE "State" = {(int)PanelState.Concluded}) AS "LastConcludedAt",
+                   (SELECT MAX("Id") FROM "Consensus") AS "LastConsensus",
+                   (SELECT MAX("Id") FROM "Observations") AS "LastObservation",
+                   (SELECT CAST(COUNT(*) AS INTEGER) FROM "Memberships" WHERE "State" = {(int)MembershipState.Revoked}) AS "Revoked"
+            """).ToListAsync()).Single();
+        if (cache.Find(fingerprint) is { } hit)
+        {
+            return hit;
+        }
+        var data = await ReadAsync();
+        cache.Keep(fingerprint, data);
+        return data;
+    }
+
+    private async Task<ScoringData> ReadAsync()
     {
         var panels = await db.Panels.AsNoTracking().Where(p => p.State == PanelState.Concluded)
             .Include(p => p.Questions).ThenInclude(q => q.Indicator)
@@ -179,4 +209,17 @@ public sealed class ScoringDataLoader(PanelRoundDbContext db)
             OutcomeKnownOn = outcome.KnownOn,
         };
     }
+}
+
+/// <summary>The last scoring data loaded and its fingerprint (one entry: the data is the whole record, and it only grows).</summary>
+/// <remarks>Shared between requests: the data must not be changed by its readers.</remarks>
+public sealed class ScoringDataCache
+{
+    private sealed record Entry(ScoringDataLoader.Fingerprint Fingerprint, ScoringData Data);
+
+    private Entry? _last;
+
+    public ScoringData? Find(ScoringDataLoader.Fingerprint fingerprint) => Volatile.Read(ref _last) is { } last && last.Fingerprint == fingerprint ? last.Data : null;
+
+    public void Keep(ScoringDataLoader.Fingerprint fingerprint, ScoringData data) => Volatile.Write(ref _last, new Entry(fingerprint, data));
 }
