@@ -5,7 +5,7 @@ namespace PanelRound.Load;
 /// <summary>Settings of a load run, from <c>--name value</c> pairs.</summary>
 internal sealed record Options(
     string? AppDll, string? Url, string? Connection, string? ApiKey, int Experts, int Questions, int Clients, int Kills, double LoadSeconds, int Pairs, int Rows,
-    string Provider, int? Panel, string Email, string Password, int Requests)
+    string Provider, int? Panel, string Email, string Password, int Requests, bool RawPrepared)
 {
     public static Options Parse(string[] args)
     {
@@ -20,14 +20,15 @@ internal sealed record Options(
             Get("--load-seconds") is { } s ? double.Parse(s, CultureInfo.InvariantCulture) : 6, Int("--pairs", 3), Int("--rows", 100_000),
             Get("--provider") ?? "Sqlite", Get("--panel") is { } panel ? int.Parse(panel, CultureInfo.InvariantCulture) : null,
             // The demo's facilitator (demo-data/panels.json): public, demo only.
-            Get("--email") ?? "facilitator@calderport-demo.example", Get("--password") ?? "Demo-Facilitator-2026", Int("--requests", 30));
+            Get("--email") ?? "facilitator@calderport-demo.example", Get("--password") ?? "Demo-Facilitator-2026", Int("--requests", 30),
+            args.Contains("--raw-prepared"));
     }
 }
 
 /// <summary>
 /// Load and fault drivers for a running PanelRound on PostgreSQL (see DEVELOPERS.md):
 /// <c>crash-recovery --app PanelRound.Web.dll [--clients 16] [--experts 100] [--kills 2] [--load-seconds 6]</c>;
-/// <c>throughput (--app PanelRound.Web.dll | --url URL --connection CS --api-key KEY) [--experts 500] [--questions 4] [--clients 32] [--pairs 3]</c>;
+/// <c>throughput (--app PanelRound.Web.dll | --url URL --connection CS --api-key KEY) [--experts 500] [--questions 4] [--clients 32] [--pairs 3] [--raw-prepared]</c>;
 /// <c>import --app PanelRound.Web.dll [--rows 100000] [--pairs 3]</c>;
 /// <c>results (--app PanelRound.Web.dll [--provider Sqlite|Postgres] | --url URL [--panel ID] [--email E --password P]) [--requests 30] [--pairs 3]</c>.
 /// </summary>
@@ -38,7 +39,7 @@ public static class LoadProgram
         if (args.Length == 0)
         {
             Console.Error.WriteLine("usage: PanelRound.Load crash-recovery --app PATH/TO/PanelRound.Web.dll [--clients N] [--experts N] [--kills N] [--load-seconds S]");
-            Console.Error.WriteLine("       PanelRound.Load throughput (--app PATH/TO/PanelRound.Web.dll | --url URL --connection CS --api-key KEY) [--experts N] [--questions N] [--clients N] [--pairs N]");
+            Console.Error.WriteLine("       PanelRound.Load throughput (--app PATH/TO/PanelRound.Web.dll | --url URL --connection CS --api-key KEY) [--experts N] [--questions N] [--clients N] [--pairs N] [--raw-prepared]");
             Console.Error.WriteLine("       PanelRound.Load import --app PATH/TO/PanelRound.Web.dll [--rows N] [--pairs N]");
             Console.Error.WriteLine("       PanelRound.Load results (--app PATH/TO/PanelRound.Web.dll [--provider Sqlite|Postgres] | --url URL [--panel ID] [--email E --password P]) [--requests N] [--pairs N]");
             return 2;

@@ -41,7 +41,11 @@ internal static class Throughput
             }
             Console.WriteLine($"Setting up a panel of {o.Experts} experts x {o.Questions * 5} values...");
             var panel = await LoadPanel.CreateAsync(baseAddress, apiKey, o.Experts, o.Questions);
-            await using var raw = new NpgsqlDataSourceBuilder(new NpgsqlConnectionStringBuilder(connection) { MaxPoolSize = Math.Max(100, o.Clients * 2) }.ToString()).Build();
+            // The raw side as Npgsql comes (statements unprepared), or with --raw-prepared prepared as the app prepares its own.
+            await using var raw = new NpgsqlDataSourceBuilder(new NpgsqlConnectionStringBuilder(connection)
+            {
+                MaxPoolSize = Math.Max(100, o.Clients * 2), MaxAutoPrepare = o.RawPrepared ? 64 : 0,
+            }.ToString()).Build();
             var ids = await RowIdsAsync(raw, panel);
 
             using var handler = new SocketsHttpHandler { MaxConnectionsPerServer = o.Clients };
@@ -52,15 +56,15 @@ internal static class Throughput
             var reads = new List<(Run App, Run Raw)>();
             for (var pair = 0; pair < o.Pairs; pair++)
             {
-                var appRun = await Measure.RunAsync(panel.Tokens.Length, o.Clients, i => SubmitAsync(http, panel, i, pair));
+                var appRun = await Measure.RunAsync(panel.Tokens.Length, o.Clients, i => SubmitAsync(http, panel, i, pair), app?.ProcessId);
                 var rawRun = await Measure.RunAsync(panel.Tokens.Length, o.Clients, i => RawInsertAsync(raw, panel, ids, i, pair));
                 submissions.Add((appRun, rawRun));
-                var appGet = await Measure.RunAsync(panel.Tokens.Length, o.Clients, i => GetFormAsync(http, panel, i));
+                var appGet = await Measure.RunAsync(panel.Tokens.Length, o.Clients, i => GetFormAsync(http, panel, i), app?.ProcessId);
                 var rawGet = await Measure.RunAsync(panel.Tokens.Length, o.Clients, i => RawReadAsync(raw, panel, ids, i));
                 reads.Add((appGet, rawGet));
             }
             Console.WriteLine();
-            Console.WriteLine($"PostgreSQL (fsync on), {o.Experts} experts x {panel.ValuesPerSubmission} values, {o.Clients} clients, {o.Pairs} interleaved pairs.");
+            Console.WriteLine($"PostgreSQL (fsync on), {o.Experts} experts x {panel.ValuesPerSubmission} values, {o.Clients} clients, {o.Pairs} interleaved pairs, raw statements {(o.RawPrepared ? "prepared" : "unprepared")}.");
             Print("Submissions (values/s)", submissions, panel.ValuesPerSubmission);
             Print("Expert form GET (requests/s)", reads, 1);
             return submissions.Concat(reads).Sum(p => p.App.Errors) == 0 ? 0 : 1;
@@ -92,6 +96,13 @@ internal static class Throughput
         }
         Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
             $"median ratio app/raw: {Measure.Median(pairs.Select(p => p.App.PerSecond(units) / p.Raw.PerSecond(units))):F2}"));
+        if (pairs.All(p => p.App.Cpu is not null && p.Raw.Cpu is not null))
+        {
+            Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
+                $"CPU ms per operation (medians), app: app process {Measure.Median(pairs.Select(p => p.App.Cpu!.AppMs)):F2}, driver {Measure.Median(pairs.Select(p => p.App.Cpu!.DriverMs)):F2}, rest (database) {Measure.Median(pairs.Select(p => p.App.Cpu!.RestMs)):F2}, machine busy {Measure.Median(pairs.Select(p => p.App.Cpu!.Busy)):P0}"));
+            Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
+                $"CPU ms per operation (medians), raw: driver {Measure.Median(pairs.Select(p => p.Raw.Cpu!.DriverMs)):F2}, rest (database) {Measure.Median(pairs.Select(p => p.Raw.Cpu!.RestMs)):F2}, machine busy {Measure.Median(pairs.Select(p => p.Raw.Cpu!.Busy)):P0}"));
+        }
     }
 
     private sealed record Ids(int RoundId, int PanelId, int[] Memberships, int IndicatorId);

@@ -3,6 +3,7 @@ using Microsoft.EntityFrameworkCore;
 using Microsoft.Extensions.Configuration;
 using Microsoft.Extensions.DependencyInjection;
 using Microsoft.Extensions.Hosting;
+using Npgsql;
 
 namespace PanelRound.Data;
 
@@ -42,7 +43,8 @@ public static class DatabaseSetup
         var options = ReadOptions(builder.Configuration);
         builder.Services.AddSingleton(options);
         var connection = ConnectionString(builder.Configuration, options.Provider, builder.Environment.ContentRootPath);
-        builder.Services.AddDbContext<PanelRoundDbContext>(o => Configure(o, options.Provider, connection));
+        // Pooled: a request reuses a reset context instead of building one (the context holds no state of its own).
+        builder.Services.AddDbContextPool<PanelRoundDbContext>(o => Configure(o, options.Provider, connection));
         return builder;
     }
 
@@ -73,7 +75,7 @@ public static class DatabaseSetup
             var pg = configuration.GetConnectionString("Postgres");
             return string.IsNullOrWhiteSpace(pg)
                 ? throw new InvalidOperationException("Database:Provider is Postgres but ConnectionStrings:Postgres is empty (set ConnectionStrings__Postgres).")
-                : pg;
+                : WithAutoPrepare(pg);
         }
         var raw = configuration.GetConnectionString("Sqlite");
         var builder = new SqliteConnectionStringBuilder(string.IsNullOrWhiteSpace(raw) ? DefaultSqliteConnection : raw);
@@ -86,6 +88,14 @@ public static class DatabaseSetup
         builder.ForeignKeys = true;
         return builder.ToString();
     }
+
+    /// <summary>The statements the app repeats most are prepared on each connection after a few uses:
+    /// <c>Max Auto Prepare</c> is 64 unless the connection string sets it (0 turns it off, e.g. behind
+    /// a pooler in transaction mode).</summary>
+    public static string WithAutoPrepare(string connectionString) =>
+        connectionString.Contains("auto prepare", StringComparison.OrdinalIgnoreCase)
+            ? connectionString
+            : new NpgsqlConnectionStringBuilder(connectionString) { MaxAutoPrepare = 64 }.ToString();
 
     public static void Configure(DbContextOptionsBuilder options, DatabaseProvider provider, string connectionString)
     {

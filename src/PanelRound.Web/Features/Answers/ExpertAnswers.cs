@@ -1,5 +1,6 @@
 using System.Text.Json;
 using Microsoft.EntityFrameworkCore;
+using Npgsql;
 using PanelRound.Core.Domain;
 using PanelRound.Data;
 using PanelRound.Data.Entities;
@@ -139,44 +140,63 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock, Pa
         return (open, true, null);
     }
 
+    /// <summary>How fine a membership's last-seen time is kept by submissions (a write per submission would cost more than it tells).</summary>
+    private static readonly TimeSpan LastSeenGrain = TimeSpan.FromMinutes(1);
+
     /// <summary>The open round a submission may enter, with its panel's version and the previous round's id and version.</summary>
     private sealed record OpenRound(int Id, int Number, Guid PanelVersion, int? PreviousId, Guid? PreviousVersion);
 
     /// <summary>
-    /// Locks the panel's open round, on the condition that it is open and before its deadline, for
-    /// the rest of the transaction; null when there is none. PostgreSQL: a shared row lock, one
-    /// statement. SQLite: the write lock, taken by a no-op update, then the round read.
+    /// Locks the panel's open round (on the condition that it is open and before its deadline) and
+    /// the expert's membership (on the condition that the link still works) for the rest of the
+    /// transaction; null when either condition fails. PostgreSQL: one statement; the round row
+    /// shared, so submissions run side by side and only the close waits; the membership row
+    /// exclusively, so one expert's own submissions take their turns (their times follow their ids)
+    /// and a revocation waits for the submission in flight. SQLite: the write lock, taken by a
+    /// no-op update, then the rows read.
     /// </summary>
-    private async Task<OpenRound?> LockOpenRoundAsync(int panelId, DateTime deadlineCheck)
+    private async Task<OpenRound?> LockAsync(PanelMembership m, DateTime deadlineCheck)
     {
         if (db.Database.IsNpgsql())
         {
-            return (await db.Database.SqlQuery<OpenRound>($"""
+            var sql = $"""
                 SELECT r."Id", r."Number", p."Version" AS "PanelVersion", pr."Id" AS "PreviousId", pr."Version" AS "PreviousVersion"
                 FROM "Rounds" r
                 JOIN "Panels" p ON p."Id" = r."PanelId"
+                JOIN "Memberships" m ON m."PanelId" = r."PanelId" AND m."Id" = @membership AND m."State" <> @revoked AND m."TokenHash" = @stamp
                 LEFT JOIN "Rounds" pr ON pr."PanelId" = r."PanelId" AND pr."Number" = r."Number" - 1
-                WHERE r."PanelId" = {panelId} AND r."State" = {(int)RoundState.Open} AND r."ClosesAt" > {deadlineCheck}
-                FOR SHARE OF r
-                """).ToListAsync()).SingleOrDefault();
+                WHERE r."PanelId" = @panel AND r."State" = @open AND r."ClosesAt" > @deadline
+                FOR SHARE OF r FOR NO KEY UPDATE OF m
+                """;
+            return (await db.Database.SqlQueryRaw<OpenRound>(sql,
+                    new NpgsqlParameter<int>("membership", m.Id), new NpgsqlParameter<int>("revoked", (int)MembershipState.Revoked),
+                    new NpgsqlParameter<string>("stamp", m.TokenHash), new NpgsqlParameter<int>("panel", m.PanelId),
+                    new NpgsqlParameter<int>("open", (int)RoundState.Open), new NpgsqlParameter<DateTime>("deadline", deadlineCheck))
+                .ToListAsync()).SingleOrDefault();
         }
-        var locked = await db.Rounds.Where(r => r.PanelId == panelId && r.State == RoundState.Open && r.ClosesAt > deadlineCheck)
+        var locked = await db.Rounds.Where(r => r.PanelId == m.PanelId && r.State == RoundState.Open && r.ClosesAt > deadlineCheck)
             .ExecuteUpdateAsync(u => u.SetProperty(r => r.Version, r => r.Version));
-        return locked == 0
-            ? null
-            : await db.Rounds.AsNoTracking().Where(r => r.PanelId == panelId && r.State == RoundState.Open)
-                .Select(r => new OpenRound(r.Id, r.Number, r.Panel!.Version,
-                    db.Rounds.Where(x => x.PanelId == panelId && x.Number == r.Number - 1).Select(x => (int?)x.Id).FirstOrDefault(),
-                    db.Rounds.Where(x => x.PanelId == panelId && x.Number == r.Number - 1).Select(x => (Guid?)x.Version).FirstOrDefault()))
-                .SingleAsync();
+        if (locked == 0 || !await db.Memberships.AnyAsync(x => x.Id == m.Id && x.State != MembershipState.Revoked && x.TokenHash == m.TokenHash))
+        {
+            return null;
+        }
+        return await db.Rounds.AsNoTracking().Where(r => r.PanelId == m.PanelId && r.State == RoundState.Open)
+            .Select(r => new OpenRound(r.Id, r.Number, r.Panel!.Version,
+                db.Rounds.Where(x => x.PanelId == r.PanelId && x.Number == r.Number - 1).Select(x => (int?)x.Id).FirstOrDefault(),
+                db.Rounds.Where(x => x.PanelId == r.PanelId && x.Number == r.Number - 1).Select(x => (Guid?)x.Version).FirstOrDefault()))
+            .SingleAsync();
     }
 
-    /// <summary>Why the panel takes no answers now, read from the panel as it is.</summary>
-    private async Task<string> WhyClosedAsync(int panelId)
+    /// <summary>Why a submission found no round to enter: the round (409, said first) or the link (404), read as they are now.</summary>
+    private async Task<Result<SubmissionReceipt>> RefusedAsync(PanelMembership m)
     {
-        var panel = await db.Panels.AsNoTracking().Include(p => p.Rounds).SingleAsync(p => p.Id == panelId);
-        var (round, _, reason) = Status(panel.State, panel.ConcludedAt, panel.Rounds);
-        return reason ?? (round is null ? "No round is open." : $"Round {round.Number} closed; answers can no longer be changed.");
+        var panel = await db.Panels.AsNoTracking().Include(p => p.Rounds).SingleAsync(p => p.Id == m.PanelId);
+        var (round, canAnswer, reason) = Status(panel.State, panel.ConcludedAt, panel.Rounds);
+        if (canAnswer && !await db.Memberships.AnyAsync(x => x.Id == m.Id && x.State != MembershipState.Revoked && x.TokenHash == m.TokenHash))
+        {
+            return Result<SubmissionReceipt>.NotFound("This personal link is unknown or has been revoked.");
+        }
+        return Result<SubmissionReceipt>.Conflict(reason ?? (round is null ? "No round is open." : $"Round {round.Number} closed; answers can no longer be changed."));
     }
 
     private static AnswerValues? Values(Estimate? e) => e is null ? null : new AnswerValues(e.Value, e.P10, e.P50, e.P90);
@@ -184,12 +204,17 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock, Pa
     /// <summary>Saves a draft or a submission for the membership's open round, all-or-nothing.</summary>
     /// <remarks>
     /// Implementation note: the save first locks the round row on the condition that it is still
-    /// open, in the same transaction as the new rows. On PostgreSQL the lock is shared
-    /// (<c>FOR SHARE</c>): submissions to one round run side by side, while the close, which
+    /// open, and the membership row on the condition that the link still works, in the same
+    /// transaction as the new rows (<see cref="LockAsync"/>). On PostgreSQL the round's lock is
+    /// shared (<c>FOR SHARE</c>): submissions to one round run side by side, while the close, which
     /// updates the row (<see cref="RoundLifecycle.CloseRoundAsync"/>), waits for those in flight, and
     /// those that come after it find the round closed. SQLite has one writer, so there the save
     /// takes the row with a no-op update. Either way a submission lands before the close reads the
-    /// answers or is refused with a conflict: never acknowledged and then missed.
+    /// answers or is refused with a conflict: never acknowledged and then missed. What does not
+    /// change while the panel runs (its questions and settings, the previous round's feedback)
+    /// comes from <see cref="PanelDefinitions"/>: a submission makes four database calls, the
+    /// link's lookup, the lock, the insert and the commit (a fifth, the last-seen time, at most
+    /// once a minute per expert).
     /// </remarks>
     /// <param name="m">The expert's membership, as the request's credential resolved it (not read again).</param>
     /// <param name="input">The answers.</param>
@@ -211,9 +236,11 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock, Pa
         }
         await using var tx = await db.Database.BeginTransactionAsync();
         var deadlineCheck = Now;
-        if (await LockOpenRoundAsync(m.PanelId, deadlineCheck) is not { } round)
+        // The link's first use makes the membership Active; after that its last-seen time is kept to the minute.
+        var touch = m.State == MembershipState.Invited || m.LastSeenAt is not { } seen || deadlineCheck - seen >= LastSeenGrain;
+        if (await LockAsync(m, deadlineCheck) is not { } round)
         {
-            return Result<SubmissionReceipt>.Conflict(await WhyClosedAsync(m.PanelId));
+            return await RefusedAsync(m);
         }
         var panel = (await definitions.GetAsync(db, m.PanelId, round.PanelVersion)).Panel;
         var previousFeedback = round.PreviousId is not { } previousId || !panel.Settings.OutliersMustJustify
@@ -225,19 +252,18 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock, Pa
         {
             return Result<SubmissionReceipt>.Invalid(check.Errors);
         }
-        var stillMember = await db.Memberships.Where(x => x.Id == m.Id && x.State != MembershipState.Revoked && x.TokenHash == m.TokenHash)
-            .ExecuteUpdateAsync(u => u.SetProperty(x => x.LastSeenAt, deadlineCheck)
-                .SetProperty(x => x.State, x => x.State == MembershipState.Invited ? MembershipState.Active : x.State));
+        if (touch)
+        {
+            await db.Memberships.Where(x => x.Id == m.Id)
+                .ExecuteUpdateAsync(u => u.SetProperty(x => x.LastSeenAt, deadlineCheck)
+                    .SetProperty(x => x.State, x => x.State == MembershipState.Invited ? MembershipState.Active : x.State));
+        }
         // Implementation note: the stored time is read only now, while this transaction holds the
         // round row and the membership row, so the expert's revisions get their times in the same
         // order as their ids: the revision that counts (the highest id) is the latest in time.
         // Whole microseconds: what PostgreSQL keeps, so a replayed receipt shows the same time as the first.
         var clockNow = Now;
         var now = clockNow.AddTicks(-(clockNow.Ticks % TimeSpan.TicksPerMicrosecond));
-        if (stillMember == 0)
-        {
-            return Result<SubmissionReceipt>.NotFound("This personal link is unknown or has been revoked.");
-        }
         var rows = check.Answers.Select(a => new Estimate
         {
             RoundId = round.Id, MembershipId = m.Id, QuestionId = a.QuestionId, Period = a.Period, Value = a.Value, P10 = a.P10, P50 = a.P50, P90 = a.P90,
