@@ -39,10 +39,17 @@ public static class ExpertAccess
         !string.IsNullOrWhiteSpace(ctx.Request.Headers[TokenHeader]) || (await ctx.AuthenticateAsync(AuthSetup.ExpertScheme)).Succeeded;
 
     /// <summary>The membership a token opens, or null for an unknown or revoked token.</summary>
-    public static Task<PanelMembership?> ResolveTokenAsync(PanelRoundDbContext db, string? token) =>
-        string.IsNullOrWhiteSpace(token)
-            ? Task.FromResult<PanelMembership?>(null)
-            : db.Memberships.FirstOrDefaultAsync(m => m.TokenHash == Secrets.Hash(token.Trim()) && m.State != MembershipState.Revoked);
+    public static Task<PanelMembership?> ResolveTokenAsync(PanelRoundDbContext db, string? token)
+    {
+        if (string.IsNullOrWhiteSpace(token))
+        {
+            return Task.FromResult<PanelMembership?>(null);
+        }
+        // Implementation note: the hash is computed here, not inside the query: a method call in a
+        // query's expression is compiled into a delegate on every execution.
+        var hash = Secrets.Hash(token.Trim());
+        return db.Memberships.FirstOrDefaultAsync(m => m.TokenHash == hash && m.State != MembershipState.Revoked);
+    }
 
     /// <summary>Exchanges a valid link for the expert cookie.</summary>
     public static Task SignInAsync(HttpContext ctx, PanelMembership m) =>
