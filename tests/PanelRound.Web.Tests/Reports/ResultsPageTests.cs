@@ -21,6 +21,28 @@ public abstract partial class ResultsPageTests(IDatabaseFixture fixture) : Provi
     ];
 
     [SkippableFact]
+    public async Task ResultsPage_RoundStillOpen_StopAdviceSaysSoFar_AfterTheCloseSaysAfterRoundN()
+    {
+        var app = await StartAsync();
+        var p = await SmallPanel.CreateAsync(app, 5);
+        var expert = app.Client();
+        for (var i = 0; i < 5; i++)
+        {
+            // Five answers within 0.1% of each other: consensus by the panel's default threshold.
+            await p.SubmitAsync(expert, i, 4000 + i);
+        }
+        var pages = await StaffPages.SignedInClientAsync(app, Roles.Facilitator);
+        string Badges(string html) => string.Join(" | ", Regex.Matches(html, "<span class=\"badge [^\"]*\" id=\"advice-q-\\d+\">([^<]+)</span>").Select(m => m.Groups[1].Value));
+
+        var live = Badges(await pages.GetStringAsync($"/Staff/Panels/Results/{p.PanelId}"));
+        Assert.Equal("Round 1 still open, so far: consensus reached | Round 1 still open, so far: consensus reached", live);
+
+        await p.Staff.PostOk($"/api/panels/{p.PanelId}/rounds/1/close", new { }, HttpStatusCode.OK);
+        var closed = Badges(await pages.GetStringAsync($"/Staff/Panels/Results/{p.PanelId}"));
+        Assert.Equal("After round 1: consensus reached | After round 1: consensus reached", closed);
+    }
+
+    [SkippableFact]
     public async Task ResultsPage_EveryDemoPanel_WordsNotIdentifiers_NoNegativeZero_ChartsForScreenAndPhone()
     {
         var app = await StartDemoAsync();

@@ -5,6 +5,7 @@ using PanelRound.Web.Features.Relations;
 using PanelRound.Web.Features.Calibration;
 using PanelRound.Web.Features.Results;
 using PanelRound.Web.Features.Scorecard;
+using PanelRound.Core.Statistics;
 
 namespace PanelRound.Web.Pages.Staff.Panels;
 
@@ -35,6 +36,27 @@ public class ResultsModel(PanelResults results, ScorecardService scorecard, Pane
 
     /// <summary>Equal, track-record and calibration-weighted consensus side by side; null without calibration questions or a closed round.</summary>
     public CalibrationComparison? CalibrationComparison { get; private set; }
+
+    /// <summary>Whether the stop advice rests on a closed round (frozen), not on the answers of a round still open.</summary>
+    public static bool AdviceIsFinal(QuestionResult q) => q.Periods.SelectMany(p => p.Rounds).MaxBy(r => r.Round) is not { Frozen: false };
+
+    /// <summary>The stop advice in words, with the round it rests on: "so far" while that round is still open.</summary>
+    public static string AdviceWords(QuestionResult q)
+    {
+        var words = q.Suggestion switch
+        {
+            StopReason.ConsensusReached => "consensus reached",
+            StopReason.Stable => "stable",
+            StopReason.RoundCapReached => "round cap reached",
+            _ => "keep going",
+        };
+        return q.Periods.SelectMany(p => p.Rounds).MaxBy(r => r.Round) switch
+        {
+            null => char.ToUpperInvariant(words[0]) + words[1..],
+            { Frozen: true } last => $"After round {last.Round}: {words}",
+            var last => $"Round {last.Round} still open, so far: {words}",
+        };
+    }
 
     public bool IsCalibration(int questionId) => Calibration?.Questions.Any(q => q.QuestionId == questionId) == true;
 
