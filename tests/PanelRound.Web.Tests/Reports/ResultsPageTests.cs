@@ -21,6 +21,22 @@ public abstract partial class ResultsPageTests(IDatabaseFixture fixture) : Provi
     ];
 
     [SkippableFact]
+    public async Task PanelList_EachTitleLinksToAPageTheRoleMayOpen()
+    {
+        var app = await StartAsync();
+        var p = await SmallPanel.CreateAsync(app, 3);
+        foreach (var (role, page) in new[] { (Roles.Reviewer, "Results"), (Roles.Facilitator, "Details") })
+        {
+            var client = await StaffPages.SignedInClientAsync(app, role);
+            var list = await client.GetStringAsync("/Staff/Panels");
+            var link = Regex.Match(list, $"<th scope=\"row\" class=\"fw-normal\"><a href=\"([^\"]+/{p.PanelId})\">Defect panel</a></th>");
+            Assert.True(link.Success, $"{role}: no title link to panel {p.PanelId}.");
+            Assert.Equal($"/Staff/Panels/{page}/{p.PanelId}", link.Groups[1].Value);
+            Assert.Equal(HttpStatusCode.OK, (await client.GetAsync(link.Groups[1].Value)).StatusCode);
+        }
+    }
+
+    [SkippableFact]
     public async Task ResultsPage_RoundStillOpen_StopAdviceSaysSoFar_AfterTheCloseSaysAfterRoundN()
     {
         var app = await StartAsync();
