@@ -192,6 +192,25 @@ public abstract partial class RelationTests(IDatabaseFixture fixture) : Provider
     }
 
     [SkippableFact]
+    public async Task ConcludedPanel_RelationCannotBeRemoved_ItsChecksStayAsPublished()
+    {
+        var app = await StartAsync();
+        var s = await PanelAsync(app, askYield: false);
+        var declared = await s.Staff.PostOk($"/api/panels/{s.PanelId}/relations", new
+        {
+            shape = "Product", result = new { questionId = s.Rent }, first = new { questionId = s.Value }, second = new { label = "Implied yield", unit = "%", factor = 0.01 },
+        });
+        await AnswerRoundAsync(s);
+        await s.Staff.PostOk($"/api/panels/{s.PanelId}/conclude", new { }, HttpStatusCode.OK);
+
+        var removed = await s.Staff.DeleteAsync($"/api/panels/{s.PanelId}/relations/{(int)declared["id"]!}");
+
+        Assert.Equal(HttpStatusCode.Conflict, removed.StatusCode);
+        Assert.Contains("concluded", await removed.Content.ReadAsStringAsync(), StringComparison.Ordinal);
+        Assert.Single((await s.Staff.GetOk($"/api/panels/{s.PanelId}/relations")).AsArray());
+    }
+
+    [SkippableFact]
     public async Task PanelPage_DeclaresAndRemovesARelation_BadInputShownBesideItsField_AndChangesNothing()
     {
         var app = await StartAsync();

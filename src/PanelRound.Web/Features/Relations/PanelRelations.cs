@@ -116,6 +116,11 @@ public sealed class PanelRelations(PanelRoundDbContext db, TimeProvider clock)
         {
             return Result<QuestionRelation>.NotFound($"Relation {relationId} of panel {panelId} does not exist.");
         }
+        if (await db.Panels.AnyAsync(p => p.Id == panelId && p.State == PanelState.Concluded))
+        {
+            // The published consensus and dossier carry this relation's checks: they stay as published.
+            return Result<QuestionRelation>.Conflict("The panel has concluded; its relations are fixed.");
+        }
         db.Relations.Remove(relation);
         Audit.Record(db, actor, "RelationRemoved", nameof(QuestionRelation), relation.Id, panelId, new { Formula = RelationDto.FormulaOf(relation) }, clock.GetUtcNow().UtcDateTime);
         await db.SaveChangesAsync();
