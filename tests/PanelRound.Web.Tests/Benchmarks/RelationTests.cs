@@ -164,15 +164,19 @@ public abstract partial class RelationTests(IDatabaseFixture fixture) : Provider
         }
     }
 
+    /// <summary>Rent = value × yield, the yield not asked (derived, in %).</summary>
+    private static Task<System.Text.Json.Nodes.JsonNode> DeclareImpliedYieldAsync(Setup s) =>
+        s.Staff.PostOk($"/api/panels/{s.PanelId}/relations", new
+        {
+            shape = "Product", result = new { questionId = s.Rent }, first = new { questionId = s.Value }, second = new { label = "Implied yield", unit = "%", factor = 0.01 },
+        });
+
     [SkippableFact]
     public async Task TwoOfThreeAsked_TheThirdIsDerived_ShownAndExportedAsDerived()
     {
         var app = await StartAsync();
         var s = await PanelAsync(app, askYield: false);
-        var declared = await s.Staff.PostOk($"/api/panels/{s.PanelId}/relations", new
-        {
-            shape = "Product", result = new { questionId = s.Rent }, first = new { questionId = s.Value }, second = new { label = "Implied yield", unit = "%", factor = 0.01 },
-        });
+        var declared = await DeclareImpliedYieldAsync(s);
         Assert.Null(declared["second"]!["questionId"]);
         await AnswerRoundAsync(s);
         await s.Staff.PostOk($"/api/panels/{s.PanelId}/conclude", new { }, HttpStatusCode.OK);
@@ -196,10 +200,7 @@ public abstract partial class RelationTests(IDatabaseFixture fixture) : Provider
     {
         var app = await StartAsync();
         var s = await PanelAsync(app, askYield: false);
-        var declared = await s.Staff.PostOk($"/api/panels/{s.PanelId}/relations", new
-        {
-            shape = "Product", result = new { questionId = s.Rent }, first = new { questionId = s.Value }, second = new { label = "Implied yield", unit = "%", factor = 0.01 },
-        });
+        var declared = await DeclareImpliedYieldAsync(s);
         await AnswerRoundAsync(s);
         await s.Staff.PostOk($"/api/panels/{s.PanelId}/conclude", new { }, HttpStatusCode.OK);
 
