@@ -30,13 +30,13 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock, Pa
     /// </remarks>
     public async Task<ExpertForm> GetFormAsync(PanelMembership m)
     {
-        var now = await db.Panels.AsNoTracking().Where(p => p.Id == m.PanelId)
+        var state = await db.Panels.AsNoTracking().Where(p => p.Id == m.PanelId)
             .Select(p => new { p.Version, p.State, p.ConcludedAt, Rounds = p.Rounds.ToList(), Catalog = db.Observations.Max(o => (int?)o.Id) })
             .SingleAsync();
-        var definition = await definitions.GetAsync(db, m.PanelId, now.Version);
+        var definition = await definitions.GetAsync(db, m.PanelId, state.Version);
         var panel = definition.Panel;
-        var rounds = now.Rounds;
-        var (round, canAnswer, reason) = Status(now.State, now.ConcludedAt, rounds);
+        var rounds = state.Rounds;
+        var (round, canAnswer, reason) = Status(state.State, state.ConcludedAt, rounds);
         // The feedback shown is the previous round's: round k-1 while round k is open, else the last closed round's.
         var feedbackRound = round is { State: RoundState.Open }
             ? rounds.FirstOrDefault(r => r.Number == round.Number - 1 && r.State == RoundState.Closed)
@@ -47,7 +47,7 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock, Pa
         var previousRound = round is null ? null : rounds.FirstOrDefault(r => r.Number == round.Number - 1);
         var previousRows = previousRound is null ? [] : own.Where(e => e.RoundId == previousRound.Id && !e.IsDraft).ToList();
 
-        var references = await definitions.ReferencesAsync(db, definition, now.Catalog);
+        var references = await definitions.ReferencesAsync(db, definition, state.Catalog);
         var questions = new List<ExpertQuestion>();
         foreach (var q in panel.Questions.OrderBy(q => q.Order))
         {
@@ -78,8 +78,8 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock, Pa
         var contact = string.IsNullOrWhiteSpace(panel.ContactName) && string.IsNullOrWhiteSpace(panel.ContactEmail)
             ? null
             : new PanelContact(NullIfBlank(panel.ContactName), NullIfBlank(panel.ContactEmail));
-        var (consensusRound, consensus) = now.State == PanelState.Concluded ? await ConsensusAsync(panel, rounds, own) : (null, []);
-        return new ExpertForm(panel.Id, m.Id, m.PanelCode, panel.Title, definition.BriefHtml, now.State,
+        var (consensusRound, consensus) = state.State == PanelState.Concluded ? await ConsensusAsync(panel, rounds, own) : (null, []);
+        return new ExpertForm(panel.Id, m.Id, m.PanelCode, panel.Title, definition.BriefHtml, state.State,
             round is null ? null : new RoundInfo(round.Number, round.OpensAt, round.ClosesAt, canAnswer),
             canAnswer, reason, feedbackRound?.Number, panel.Settings.OutliersMustJustify, lastSubmit, questions,
             Now, contact, consensusRound, consensus);
@@ -159,7 +159,7 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock, Pa
     {
         if (db.Database.IsNpgsql())
         {
-            var sql = $"""
+            const string sql = """
                 SELECT r."Id", r."Number", p."Version" AS "PanelVersion", pr."Id" AS "PreviousId", pr."Version" AS "PreviousVersion"
                 FROM "Rounds" r
                 JOIN "Panels" p ON p."Id" = r."PanelId"
@@ -176,7 +176,7 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock, Pa
         }
         var locked = await db.Rounds.Where(r => r.PanelId == m.PanelId && r.State == RoundState.Open && r.ClosesAt > deadlineCheck)
             .ExecuteUpdateAsync(u => u.SetProperty(r => r.Version, r => r.Version));
-        if (locked == 0 || !await db.Memberships.AnyAsync(x => x.Id == m.Id && x.State != MembershipState.Revoked && x.TokenHash == m.TokenHash))
+        if (locked == 0 || !await LinkStillWorksAsync(m))
         {
             return null;
         }
@@ -187,12 +187,16 @@ public sealed class ExpertAnswers(PanelRoundDbContext db, TimeProvider clock, Pa
             .SingleAsync();
     }
 
+    /// <summary>Whether the membership's link still opens it: not revoked, and not re-issued since the request's credential was read.</summary>
+    private Task<bool> LinkStillWorksAsync(PanelMembership m) =>
+        db.Memberships.AnyAsync(x => x.Id == m.Id && x.State != MembershipState.Revoked && x.TokenHash == m.TokenHash);
+
     /// <summary>Why a submission found no round to enter: the round (409, said first) or the link (404), read as they are now.</summary>
     private async Task<Result<SubmissionReceipt>> RefusedAsync(PanelMembership m)
     {
         var panel = await db.Panels.AsNoTracking().Include(p => p.Rounds).SingleAsync(p => p.Id == m.PanelId);
         var (round, canAnswer, reason) = Status(panel.State, panel.ConcludedAt, panel.Rounds);
-        if (canAnswer && !await db.Memberships.AnyAsync(x => x.Id == m.Id && x.State != MembershipState.Revoked && x.TokenHash == m.TokenHash))
+        if (canAnswer && !await LinkStillWorksAsync(m))
         {
             return Result<SubmissionReceipt>.NotFound("This personal link is unknown or has been revoked.");
         }
